@@ -1,0 +1,48 @@
+"""Histogram counts on original bins, and the same bins mapped into scaled units.
+
+Because every method is increasing, the scaled histogram is the original one with its
+edges sent through the transform: bar i on one side holds exactly the values of bar i on
+the other. Switching a method therefore only maps the edges (a few dozen numbers) and
+never touches the column's values again.
+"""
+
+from __future__ import annotations
+
+from dataclasses import dataclass
+
+import numpy as np
+
+from .plan import FittedColumn, ParamSet
+
+
+@dataclass(frozen=True)
+class Histogram:
+    edges: np.ndarray  # bins + 1 edges, original units
+    counts: np.ndarray  # values per bar (integers)
+
+
+def histogram(values: np.ndarray, bins: int = 30) -> Histogram:
+    """Equal-width bins over the finite values (missing and infinite values left out)."""
+    x = np.asarray(values, dtype=np.float64)
+    x = x[np.isfinite(x)]
+    if x.size == 0:
+        return Histogram(np.array([0.0, 1.0]), np.zeros(1, dtype=np.int64))
+    lo, hi = float(np.min(x)), float(np.max(x))
+    if lo == hi:
+        lo, hi = lo - 0.5, hi + 0.5
+    counts, edges = np.histogram(x, bins=bins, range=(lo, hi))
+    return Histogram(edges, counts)
+
+
+def mapped_edges(
+    edges: np.ndarray, fitted: FittedColumn, params: ParamSet | None = None
+) -> np.ndarray:
+    """The edges in scaled units; NaN where an edge is outside the method's domain."""
+    return fitted.forward(np.asarray(edges, dtype=np.float64), params)
+
+
+def bars_in_range(edges: np.ndarray, low: float, high: float) -> tuple[int, int]:
+    """First and last bar (inclusive) that overlap [low, high] on the same axis as ``edges``."""
+    first = int(np.clip(np.searchsorted(edges, low, side="right") - 1, 0, len(edges) - 2))
+    last = int(np.clip(np.searchsorted(edges, high, side="left") - 1, 0, len(edges) - 2))
+    return min(first, last), max(first, last)

@@ -1,0 +1,389 @@
+"""Fitting a table's per-column choices, applying them, and restoring original units.
+
+The engine's table-level API, in the spirit of scikit-learn's fit / transform /
+inverse_transform: the choices (method and options, what the user picked) are kept apart
+from the fitted values (``FittedColumn``), and both are plain data that the project file
+can store without pickling.
+"""
+
+from __future__ import annotations
+
+import math
+from collections.abc import Mapping, Sequence
+from dataclasses import dataclass, field
+from typing import Any
+
+import numpy as np
+import pandas as pd
+
+from ..errors import ColumnError, ScalewrightError
+from .methods import FitResult, Method, get_method
+
+
+@dataclass(frozen=True)
+class ColumnChoice:
+    """What the user chose for one column: a method id and its options as given."""
+
+    method: str = "none"
+    options: Mapping[str, Any] = field(default_factory=dict)
+
+    def normalized(self) -> ColumnChoice:
+        """The same choice with the method id checked and every option filled in."""
+        method = get_method(self.method)
+        return ColumnChoice(method.id, method.options(self.options))
+
+
+@dataclass(frozen=True)
+class FitSettings:
+    """Which rows the parameters are fitted on, and whether per group."""
+
+    fit_where: tuple[str, str] | None = None  # (column, value as text): fit only on these rows
+    group_by: str | None = None  # one parameter set per value of this column
+
+
+@dataclass(frozen=True)
+class ParamSet:
+    """Fitted parameters with the size and range (original units) of what they were fitted on."""
+
+    params: dict[str, Any]
+    n: int
+    min: float
+    max: float
+
+
+@dataclass(frozen=True)
+class FittedColumn:
+    column: str
+    method: str
+    options: dict[str, Any]
+    pooled: ParamSet  # fitted on every fit row; used for groups not seen when fitting
+    groups: dict[str, ParamSet] = field(default_factory=dict)
+    n_missing: int = 0  # blank cells among the fit rows
+    n_infinite: int = 0  # infinite values among the fit rows, left out of the fit
+    warnings: tuple[str, ...] = ()
+
+    @property
+    def method_obj(self) -> Method:
+        return get_method(self.method)
+
+    def forward(self, x: np.ndarray, params: ParamSet | None = None) -> np.ndarray:
+        """Scale ``x`` with the pooled (or the given) parameters; NaN and infinities pass."""
+        return _through_finite(x, self.method_obj.forward, (params or self.pooled).params)
+
+    def inverse(self, y: np.ndarray, params: ParamSet | None = None) -> np.ndarray:
+        return _through_finite(y, self.method_obj.inverse, (params or self.pooled).params)
+
+
+@dataclass
+class FittedPlan:
+    columns: dict[str, FittedColumn]
+    settings: FitSettings = FitSettings()
+    n_rows: int = 0  # rows the parameters were fitted on
+
+    def __getitem__(self, column: str) -> FittedColumn:
+        return self.columns[column]
+
+
+@dataclass
+class ColumnReport:
+    """What happened to one column when applying or restoring: counts and plain warnings."""
+
+    column: str
+    fitted_as: str
+    n_values: int = 0
+    n_below: int = 0  # below the fitted range (apply only)
+    n_above: int = 0
+    n_clipped: int = 0
+    n_infinite: int = 0
+    n_undefined: int = 0  # values the transform cannot map (left blank)
+    unseen_groups: list[str] = field(default_factory=list)
+    warnings: list[str] = field(default_factory=list)
+
+    @property
+    def n_outside(self) -> int:
+        return self.n_below + self.n_above
+
+
+# --------------------------------------------------------------------------- values
+
+
+def value_key(value: Any) -> str:
+    """Canonical text for a cell used as a group or a fit-subset value.
+
+    Whole floats read as integers (``3.0`` -> ``"3"``) so that a group written as 3 in one
+    file and 3.0 in another is the same group; missing values are ``""``.
+    """
+    if value is None or value is pd.NA or (isinstance(value, float) and math.isnan(value)):
+        return ""
+    if isinstance(value, (bool, np.bool_)):
+        return "true" if value else "false"
+    if isinstance(value, (float, np.floating)) and float(value).is_integer():
+        return str(int(value))
+    if isinstance(value, pd.Timestamp):
+        return value.isoformat()
+    return str(value).strip()
+
+
+def _keys(series: pd.Series) -> tuple[np.ndarray, list[str]]:
+    """Factorize ``series`` into integer codes and the canonical key of each code."""
+    codes, uniques = pd.factorize(series, use_na_sentinel=True)
+    return codes, [value_key(u) for u in uniques]
+
+
+def column_values(data: pd.DataFrame, column: str) -> np.ndarray:
+    """The column as float64 with missing values as NaN; ColumnError if absent or not numeric."""
+    if column not in data.columns:
+        raise ColumnError(column, "there is no such column")
+    series = data[column]
+    if isinstance(series, pd.DataFrame):
+        raise ColumnError(column, "the name is used by more than one column")
+    if pd.api.types.is_bool_dtype(series.dtype) or not pd.api.types.is_numeric_dtype(series.dtype):
+        raise ColumnError(column, "is not a numeric column, so it cannot be scaled")
+    return series.to_numpy(dtype=np.float64, na_value=np.nan)
+
+
+def fit_rows(data: pd.DataFrame, settings: FitSettings) -> np.ndarray:
+    """Boolean mask of the rows the parameters are fitted on."""
+    if settings.fit_where is None:
+        return np.ones(len(data), dtype=bool)
+    column, wanted = settings.fit_where
+    if column not in data.columns:
+        raise ColumnError(column, "the column named for choosing fit rows is not in the table")
+    codes, keys = _keys(data[column])
+    matching = [i for i, k in enumerate(keys) if k == value_key(wanted)]
+    mask = np.isin(codes, matching)
+    if not mask.any():
+        raise ColumnError(column, f"no row has the value '{wanted}', so there is nothing to fit on")
+    return mask
+
+
+def _through_finite(x: np.ndarray, func, params: Mapping[str, Any]) -> np.ndarray:
+    """Apply ``func`` to the finite values only; NaN stays NaN and infinities pass through."""
+    x = np.asarray(x, dtype=np.float64)
+    finite = np.isfinite(x)
+    if finite.all():
+        return np.asarray(func(x, params), dtype=np.float64)
+    out = x.copy()
+    out[finite] = func(x[finite], params)
+    return out
+
+
+# --------------------------------------------------------------------------- fitting
+
+
+def _fit_values(
+    method: Method, column: str, x: np.ndarray, options: dict, label: str = ""
+) -> tuple[ParamSet, list[str]]:
+    where = f" (group '{label}')" if label else ""
+    if x.size == 0:
+        raise ColumnError(column, f"has no numbers to fit{where}")
+    try:
+        result: FitResult = method.fit(x, options)
+    except ScalewrightError as err:
+        raise ColumnError(column, f"{err}{where}") from None
+    params = dict(result)
+    ps = ParamSet(params, int(x.size), float(np.min(x)), float(np.max(x)))
+    return ps, [f"{w}{where}" for w in result.warnings]
+
+
+def fit_column(
+    values: np.ndarray,
+    choice: ColumnChoice,
+    *,
+    column: str,
+    fit_mask: np.ndarray | None = None,
+    group_keys: tuple[np.ndarray, list[str]] | None = None,
+) -> FittedColumn:
+    """Fit one column's choice on the rows in ``fit_mask``, pooled and per group.
+
+    ``values`` is the whole column (float64, NaN for missing); missing and infinite values
+    are left out of the fit. ``group_keys`` is (codes, keys) from factorizing the grouping
+    column.
+    """
+    choice = choice.normalized()
+    method = get_method(choice.method)
+    x = np.asarray(values, dtype=np.float64)
+    rows = np.ones(x.size, dtype=bool) if fit_mask is None else fit_mask
+    finite = np.isfinite(x)
+    n_missing = int(np.count_nonzero(np.isnan(x) & rows))
+    n_infinite = int(np.count_nonzero(np.isinf(x) & rows))
+    use = rows & finite
+    pooled, warnings = _fit_values(method, column, x[use], choice.options)
+    groups: dict[str, ParamSet] = {}
+    if group_keys is not None and choice.method != "none":
+        codes, keys = group_keys
+        for code, key in enumerate(keys):
+            in_group = use & (codes == code)
+            if not in_group.any():
+                continue
+            groups[key], group_warnings = _fit_values(
+                method, column, x[in_group], choice.options, key
+            )
+            warnings.extend(group_warnings)
+    if n_infinite:
+        warnings.append(
+            f"{n_infinite} infinite values were left out of the fit and are passed through"
+        )
+    if pooled.n < 2 and choice.method != "none":
+        warnings.append("only one value to fit on")
+    return FittedColumn(
+        column=column,
+        method=choice.method,
+        options=dict(choice.options),
+        pooled=pooled,
+        groups=groups,
+        n_missing=n_missing,
+        n_infinite=n_infinite,
+        warnings=tuple(warnings),
+    )
+
+
+def fit(
+    data: pd.DataFrame,
+    choices: Mapping[str, ColumnChoice],
+    settings: FitSettings = FitSettings(),
+) -> FittedPlan:
+    """Fit every column whose choice is not 'none'. Raises ColumnError for the first problem."""
+    mask = fit_rows(data, settings)
+    group_keys = None
+    if settings.group_by is not None:
+        if settings.group_by not in data.columns:
+            raise ColumnError(settings.group_by, "the grouping column is not in the table")
+        group_keys = _keys(data[settings.group_by])
+    fitted: dict[str, FittedColumn] = {}
+    for column, choice in choices.items():
+        if get_method(choice.method).id == "none":
+            continue
+        if column == settings.group_by:
+            raise ColumnError(column, "is the grouping column, so it cannot be scaled too")
+        fitted[column] = fit_column(
+            column_values(data, column), choice, column=column, fit_mask=mask, group_keys=group_keys
+        )
+    return FittedPlan(fitted, settings, int(np.count_nonzero(mask)))
+
+
+# --------------------------------------------------------------------------- apply / restore
+
+
+def _param_sets_by_row(
+    fc: FittedColumn, data: pd.DataFrame, group_by: str | None, report: ColumnReport
+) -> list[tuple[ParamSet, np.ndarray | None]]:
+    """Which parameter set serves which rows: [(params, row mask or None for all rows)]."""
+    if group_by is None or not fc.groups:
+        return [(fc.pooled, None)]
+    if group_by not in data.columns:
+        report.warnings.append(
+            f"there is no '{group_by}' column here, so the parameters fitted on all groups were used"
+        )
+        return [(fc.pooled, None)]
+    codes, keys = _keys(data[group_by])
+    out = []
+    pooled_rows = codes < 0
+    for code, key in enumerate(keys):
+        rows = codes == code
+        if key in fc.groups:
+            out.append((fc.groups[key], rows))
+        else:
+            report.unseen_groups.append(key)
+            pooled_rows |= rows
+    if report.unseen_groups:
+        report.warnings.append(
+            "groups not seen when fitting used the parameters fitted on all groups: "
+            + ", ".join(f"'{k}'" for k in report.unseen_groups)
+        )
+    if pooled_rows.any():
+        out.append((fc.pooled, pooled_rows))
+    return out
+
+
+def _run(
+    data: pd.DataFrame,
+    plan: FittedPlan,
+    pairs: Sequence[tuple[str, str]],
+    *,
+    restoring: bool,
+    clip: bool = False,
+) -> tuple[pd.DataFrame, list[ColumnReport]]:
+    out = data.copy()
+    reports = []
+    for target, source in pairs:
+        fc = plan.columns[source]
+        x = column_values(data, target)
+        report = ColumnReport(target, source, n_values=int(np.count_nonzero(~np.isnan(x))))
+        report.n_infinite = int(np.count_nonzero(np.isinf(x)))
+        result = np.full(x.shape, np.nan)
+        for ps, rows in _param_sets_by_row(fc, data, plan.settings.group_by, report):
+            part = x if rows is None else x[rows]
+            if not restoring:
+                finite = np.isfinite(part)  # infinities pass through, neither counted nor clipped
+                below, above = finite & (part < ps.min), finite & (part > ps.max)
+                report.n_below += int(np.count_nonzero(below))
+                report.n_above += int(np.count_nonzero(above))
+                if clip:
+                    part = np.where(finite, np.clip(part, ps.min, ps.max), part)
+                    report.n_clipped += int(np.count_nonzero(below | above))
+                mapped = fc.forward(part, ps)
+            else:
+                mapped = fc.inverse(part, ps)
+            if rows is None:
+                result = mapped
+            else:
+                result[rows] = mapped
+        undefined = np.isnan(result) & ~np.isnan(x)
+        report.n_undefined = int(np.count_nonzero(undefined))
+        if report.n_undefined:
+            what = "original units" if restoring else "scaled units"
+            report.warnings.append(
+                f"{report.n_undefined} values have no value in {what} for {fc.method} "
+                "with these parameters and were left blank"
+            )
+        if report.n_infinite:
+            report.warnings.append(
+                f"{report.n_infinite} infinite values were passed through unchanged"
+            )
+        if report.n_outside and not clip:
+            report.warnings.append(
+                f"{report.n_below} values below and {report.n_above} above the fitted range "
+                f"[{fc.pooled.min!r}, {fc.pooled.max!r}]"
+                if not fc.groups
+                else f"{report.n_below} values below and {report.n_above} above their group's fitted range"
+            )
+        out[target] = result
+        reports.append(report)
+    return out, reports
+
+
+def apply(
+    data: pd.DataFrame, plan: FittedPlan, *, clip: bool = False
+) -> tuple[pd.DataFrame, list[ColumnReport]]:
+    """Scale every fitted column of ``data``; other columns are returned untouched.
+
+    Values outside the range the parameters were fitted on are counted per column, and
+    with ``clip`` moved to the nearest end of that range first.
+    """
+    missing = [c for c in plan.columns if c not in data.columns]
+    if missing:
+        raise ColumnError(missing[0], "was fitted in the project but is not in this table")
+    return _run(data, plan, [(c, c) for c in plan.columns], restoring=False, clip=clip)
+
+
+def restore(
+    data: pd.DataFrame, plan: FittedPlan, mapping: Mapping[str, str] | None = None
+) -> tuple[pd.DataFrame, list[ColumnReport]]:
+    """Turn scaled values back into original units.
+
+    ``mapping`` maps a column of ``data`` to the fitted column whose parameters restore it
+    (for example ``{"prediction": "yield_kg"}``). Without it, every column of ``data`` that
+    was fitted is restored with its own parameters. Other columns pass through untouched.
+    """
+    if mapping is None:
+        pairs = [(c, c) for c in data.columns if c in plan.columns]
+    else:
+        pairs = []
+        for target, source in mapping.items():
+            if target not in data.columns:
+                raise ColumnError(target, "is not in the file to restore")
+            if source not in plan.columns:
+                raise ColumnError(source, "has no fitted parameters in the project")
+            pairs.append((target, source))
+    return _run(data, plan, pairs, restoring=True)
