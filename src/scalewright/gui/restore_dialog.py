@@ -1,0 +1,624 @@
+"""The dialog that turns scaled values back into original units.
+
+The user picks a file of scaled values (for example a model's predictions), and says for
+each of its columns which fitted column's parameters restore it. Columns named like a
+fitted column are matched automatically; any match can be changed or removed with the
+box on its row. A preview shows the first rows before and after, and the result is
+written in the background with a progress bar and a Cancel button.
+
+The parameters come from the project open in the window, or from a project file or a
+scaled workbook chosen here (a workbook written by Scalewright carries its project).
+"""
+
+from __future__ import annotations
+
+from pathlib import Path
+
+import pandas as pd
+from PySide6.QtCore import Qt, Signal
+from PySide6.QtWidgets import (
+    QAbstractItemView,
+    QComboBox,
+    QDialogButtonBox,
+    QFileDialog,
+    QGroupBox,
+    QHBoxLayout,
+    QHeaderView,
+    QLabel,
+    QPushButton,
+    QSizePolicy,
+    QTableWidget,
+    QTableWidgetItem,
+    QVBoxLayout,
+    QWidget,
+)
+
+from .. import engine, tasks
+from .. import io as swio
+from ..errors import ScalewrightError
+from . import theme
+from .apply_dialog import (
+    OK_STYLE,
+    FileRow,
+    OutputRow,
+    WritingDialog,
+    numbers_frame,
+    numeric_problem,
+    plural,
+    set_message,
+)
+from .errors import plain_message
+from .import_dialog import MUTED_STYLE, FrameModel, kind_word, make_preview_view, message_label
+
+PREVIEW_ROWS = 20
+LEAVE = "leave as is"
+PROJECT_FILTER = "Project or scaled workbook (*.swproj *.xlsx *.xlsm);;All files (*)"
+
+
+class RestoreDialog(WritingDialog):
+    """Restore original units in a file of scaled values.
+
+    ``project`` may be None: the user then chooses a project file or a scaled workbook in
+    the dialog. ``exec()`` returns Accepted when a file was written (``written_path()`` and
+    ``reports()`` tell what); ``fileWritten(path, reports)`` is emitted on success.
+    ``set_data_file``, ``set_mapping``, ``set_output`` and ``save`` drive it from code the
+    way the controls do.
+    """
+
+    previewReady = Signal()  # the mapping table was rebuilt for a newly chosen file
+    projectChanged = Signal(object)  # Project, after one was loaded in the dialog
+
+    def __init__(self, project=None, parent: QWidget | None = None) -> None:
+        super().__init__(parent)
+        self._project = None
+        self._project_error = ""
+        self._table: swio.Table | None = None
+        self._read_error = ""
+        self._auto: dict[str, str] = {}
+        self._combos: dict[str, QComboBox] = {}
+        self._preview_frame = pd.DataFrame()
+        self._preview_notes: list[str] = []
+        self.setWindowTitle("Restore original units")
+        self.setObjectName("restoreDialog")
+        self.resize(980, 760)
+        self._build()
+        self.set_project(project)
+
+    # ------------------------------------------------------------------ building
+
+    def _build(self) -> None:
+        intro = QLabel(
+            "<span style='font-size:12pt'><b>Restore original units</b></span><br>"
+            "Turn scaled values, for example a model's predictions, back into the units of "
+            "the original data, with the parameters saved in a project."
+        )
+        intro.setWordWrap(True)
+
+        self.project_label = QLabel()
+        self.project_label.setObjectName("projectLabel")
+        self.project_label.setWordWrap(True)
+        self.project_button = QPushButton("Choose…")
+        self.project_button.setToolTip(
+            "Use the parameters of a project file (.swproj) or of a scaled workbook written "
+            "by Scalewright (.xlsx), which carries its project inside."
+        )
+        self.project_button.setAutoDefault(False)
+        self.project_button.clicked.connect(self._browse_project)
+        self.project_error = message_label()
+        self.project_error.setObjectName("projectError")
+        project_box = QGroupBox("Parameters from")
+        project_row = QHBoxLayout()
+        project_row.addWidget(self.project_label, 1)
+        project_row.addWidget(self.project_button, 0, Qt.AlignmentFlag.AlignTop)
+        project_layout = QVBoxLayout(project_box)
+        project_layout.addLayout(project_row)
+        project_layout.addWidget(self.project_error)
+
+        self.data_row = FileRow(
+            "Choose the file of scaled values",
+            "The file holding scaled values to bring back to original units, for example "
+            "a model's predictions.",
+        )
+        self.data_row.changed.connect(self._load_data)
+        self.data_error = message_label()
+        self.data_error.setObjectName("dataError")
+        data_box = QGroupBox("File of scaled values")
+        data_layout = QVBoxLayout(data_box)
+        data_layout.addWidget(self.data_row)
+        data_layout.addWidget(self.data_error)
+
+        self.mapping_table = QTableWidget(0, 3)
+        self.mapping_table.setObjectName("mapping")
+        self.mapping_table.setToolTip(
+            "For each column of the file: the fitted column whose parameters bring it back "
+            "to original units, or 'leave as is'."
+        )
+        self.mapping_table.setEditTriggers(QAbstractItemView.EditTrigger.NoEditTriggers)
+        self.mapping_table.setSelectionMode(QAbstractItemView.SelectionMode.NoSelection)
+        self.mapping_table.verticalHeader().hide()
+        for i, (title, tip) in enumerate((
+            ("Column in the file", "A column of the chosen file."),
+            ("Restore with the parameters of", "The fitted column whose parameters restore it."),
+            ("Matched", "Whether the pair was found by name or chosen by you."),
+        )):
+            item = QTableWidgetItem(title)
+            item.setToolTip(tip)
+            self.mapping_table.setHorizontalHeaderItem(i, item)
+        header = self.mapping_table.horizontalHeader()
+        header.setDefaultAlignment(Qt.AlignmentFlag.AlignLeft)
+        header.setSectionResizeMode(QHeaderView.ResizeMode.ResizeToContents)
+        header.setSectionResizeMode(1, QHeaderView.ResizeMode.Stretch)
+        self.mapping_table.setHorizontalScrollBarPolicy(Qt.ScrollBarPolicy.ScrollBarAlwaysOff)
+        self.mapping_hint = QLabel()
+        self.mapping_hint.setSizePolicy(QSizePolicy.Policy.Preferred,
+                                        QSizePolicy.Policy.Minimum)
+        self.mapping_hint.setObjectName("mappingHint")
+        self.mapping_hint.setWordWrap(True)
+        mapping_box = QGroupBox("Which parameters restore each column")
+        mapping_layout = QVBoxLayout(mapping_box)
+        mapping_layout.addWidget(self.mapping_hint)
+        mapping_layout.addWidget(self.mapping_table, 1)
+
+        self.preview_model = FrameModel(parent=self)
+        self.preview_view = make_preview_view(
+            self.preview_model,
+            f"The first {PREVIEW_ROWS} rows of each restored column, as they are in the file "
+            "and in original units.",
+        )
+        self.preview_notes = QLabel()
+        self.preview_notes.setObjectName("previewNotes")
+        self.preview_notes.setWordWrap(True)
+        self.preview_notes.setSizePolicy(QSizePolicy.Policy.Preferred,
+                                         QSizePolicy.Policy.Minimum)
+        preview_box = QGroupBox("Preview: first rows before and after")
+        preview_layout = QVBoxLayout(preview_box)
+        preview_layout.addWidget(self.preview_view, 1)
+        preview_layout.addWidget(self.preview_notes)
+
+        middle = QHBoxLayout()
+        middle.setSpacing(12)
+        middle.addWidget(mapping_box, 5)
+        middle.addWidget(preview_box, 4)
+
+        self.output_row = OutputRow(
+            "The file to write: .xlsx, .csv or .tsv. Columns that are not restored are "
+            "written as they are. It can never be the file of scaled values itself."
+        )
+        self.output_row.edit.setPlaceholderText(
+            "Where to save, for example predicted_yield_kg.csv"
+        )
+        self.output_row.changed.connect(self._update_state)
+        self.output_error = message_label()
+        self.output_error.setObjectName("outputError")
+        out_box = QGroupBox("Save the restored file as")
+        out_layout = QVBoxLayout(out_box)
+        out_layout.addWidget(self.output_row)
+        out_layout.addWidget(self.output_error)
+
+        self.buttons = QDialogButtonBox()
+        self.save_button = self.buttons.addButton(
+            "Save restored file", QDialogButtonBox.ButtonRole.ActionRole
+        )
+        self.save_button.setObjectName("save")
+        self.save_button.setDefault(True)
+        self.close_button = self.buttons.addButton(QDialogButtonBox.StandardButton.Close)
+        self.close_button.setAutoDefault(False)
+        self.close_button.setToolTip("Close this window (a file being written is stopped first).")
+        self.save_button.clicked.connect(self.save)
+        self.close_button.clicked.connect(self.reject)
+
+        bottom = QHBoxLayout()
+        bottom.setSpacing(theme.SPACING)
+        bottom.addWidget(self.runner, 1)
+        bottom.addWidget(self.buttons)
+
+        layout = QVBoxLayout(self)
+        layout.setContentsMargins(16, 16, 16, 16)
+        layout.setSpacing(10)
+        layout.addWidget(intro)
+        layout.addWidget(project_box)
+        layout.addWidget(data_box)
+        layout.addLayout(middle, 1)
+        layout.addWidget(out_box)
+        layout.addWidget(self.result_label)
+        layout.addLayout(bottom)
+
+    # ------------------------------------------------------------------ public API
+
+    def project(self):
+        return self._project
+
+    def set_project(self, project) -> None:
+        """Use this project's parameters (None: the user must choose a project first)."""
+        self._project = project
+        self._project_error = ""
+        self._show_project()
+        self._fill_mapping()
+
+    def load_project_file(self, path: str | Path) -> bool:
+        """Take the parameters from a .swproj file or a scaled workbook; False on failure
+        (the reason is shown in the dialog)."""
+        try:
+            project = tasks.load_project_or_workbook(path)
+        except Exception as err:  # shown inline, never a crash
+            self._project_error = plain_message(err)
+            set_message(self.project_error, self._project_error)
+            self._update_state()
+            return False
+        self.set_project(project)
+        self.project_label.setToolTip(str(path))
+        self.projectChanged.emit(project)
+        return True
+
+    def set_data_file(self, path: str | Path, sheet: str | None = None) -> None:
+        """Choose the file of scaled values (it is read in the background)."""
+        self.data_row.set_path(path, sheet=sheet)
+
+    def set_output(self, path: str | Path) -> None:
+        self.output_row.set_path(path)
+
+    def automatic_mapping(self) -> dict[str, str]:
+        """The pairs found by name for the chosen file."""
+        return dict(self._auto)
+
+    def mapping(self) -> dict[str, str]:
+        """File column -> fitted column, as currently chosen ('leave as is' left out)."""
+        out = {}
+        for column, box in self._combos.items():
+            fitted = box.currentData()
+            if fitted:
+                out[column] = fitted
+        return out
+
+    def set_mapping(self, column: str, fitted: str | None) -> None:
+        """Choose, as the box on the column's row does, which parameters restore it."""
+        box = self._combos[column]
+        i = box.findData(fitted or "")
+        if i < 0:
+            raise KeyError(fitted)
+        box.setCurrentIndex(i)
+
+    def mapping_box(self, column: str) -> QComboBox:
+        return self._combos[column]
+
+    def preview_frame(self) -> pd.DataFrame:
+        return self._preview_frame.copy()
+
+    def table_read(self) -> swio.Table | None:
+        return self._table
+
+    def data_problem(self) -> str:
+        return self._data_problem()
+
+    def output_problem(self) -> str:
+        return self.output_error.toolTip() if self.output_error.isVisibleTo(self) else ""
+
+    def can_save(self) -> bool:
+        return self.save_button.isEnabled()
+
+    # ------------------------------------------------------------------ project
+
+    def _fitted(self) -> dict:
+        plan = getattr(self._project, "plan", None)
+        return dict(plan.columns) if plan is not None else {}
+
+    def _show_project(self) -> None:
+        set_message(self.project_error, self._project_error)
+        if self._project is None:
+            self.project_label.setText("No project yet: choose a project file or a scaled "
+                                       "workbook.")
+            self.project_label.setStyleSheet(MUTED_STYLE)
+            return
+        self.project_label.setStyleSheet("")
+        fitted = self._fitted()
+        source = Path(self._project.source).name if self._project.source else "an unnamed file"
+        if not fitted:
+            self.project_label.setText(f"The project for <b>{_html(source)}</b> has no fitted "
+                                       "columns yet, so there is nothing to restore with.")
+            return
+        names = ", ".join(
+            f"{_html(c)} ({engine.get_method(fc.method).name})" for c, fc in fitted.items()
+        )
+        self.project_label.setText(
+            f"Fitted on <b>{_html(source)}</b>: {plural(len(fitted), 'column')}: {names}"
+        )
+
+    def _browse_project(self) -> None:
+        name, _ = QFileDialog.getOpenFileName(
+            self, "Choose a project or a scaled workbook", "", PROJECT_FILTER
+        )
+        if name:
+            self.load_project_file(name)
+
+    # ------------------------------------------------------------------ reading
+
+    def _load_data(self) -> None:
+        self._table = None
+        self._read_error = ""
+        self.result_label.hide()
+        path, sheet = self.data_row.path(), self.data_row.sheet()
+        if path is None:
+            self._fill_mapping()
+            return
+        self.output_row.suggested_folder = path.parent
+        if self.runner.busy:
+            self.cancel_job()
+            self.runner.job.ended.connect(self._load_data)
+            return
+
+        def read(progress, cancelled):
+            return swio.read_table(path, swio.ReadOptions(sheet=sheet),
+                                   progress=progress, cancelled=cancelled)
+
+        self.mapping_hint.setText(f"Reading {_html(path.name)}…")
+        self.run_job(f"Reading {path.name}…", read, self._data_read, self._data_failed,
+                     self._data_stopped)
+
+    def _data_read(self, table: swio.Table) -> None:
+        self._table = table
+        self._fill_mapping()
+        self.previewReady.emit()
+
+    def _data_failed(self, err: BaseException) -> None:
+        self._read_error = plain_message(err)
+        self._fill_mapping()
+        self.previewReady.emit()
+
+    def _data_stopped(self) -> None:
+        self._read_error = "Reading was stopped; choose the file again."
+        self._fill_mapping()
+
+    # ------------------------------------------------------------------ mapping
+
+    def _fill_mapping(self) -> None:
+        self._combos = {}
+        self.mapping_table.setRowCount(0)
+        fitted = self._fitted()
+        self._auto = {}
+        if self._table is None:
+            self.mapping_hint.setText(
+                "Choose a file to pair its columns with the project's fitted columns."
+                if self._project is not None else "Choose a project first, then a file."
+            )
+            self.mapping_hint.setStyleSheet(MUTED_STYLE)
+            self._refresh_preview()
+            return
+        columns = [str(c) for c in self._table.data.columns]
+        if fitted:
+            auto = tasks.auto_mapping(columns, self._project)
+            self._auto = {c: f for c, f in auto.items() if not numeric_problem(self._table, c)}
+        self.mapping_table.setRowCount(len(columns))
+        for r, column in enumerate(columns):
+            name = QTableWidgetItem(column)
+            kind = self._table.kinds.get(column)
+            word, explain = kind_word(kind) if kind is not None else ("", "")
+            name.setToolTip(f"{column}: {word}. {explain}" if word else column)
+            self.mapping_table.setItem(r, 0, name)
+            box = QComboBox()
+            box.addItem(LEAVE, "")
+            box.setItemData(0, "Write this column as it is in the file.",
+                            Qt.ItemDataRole.ToolTipRole)
+            for f, fc in fitted.items():
+                box.addItem(f"{f}  ({engine.get_method(fc.method).name})", f)
+                box.setItemData(box.count() - 1, _params_tip(fc), Qt.ItemDataRole.ToolTipRole)
+            why = numeric_problem(self._table, column)
+            if why or not fitted:
+                box.setEnabled(False)
+                box.setToolTip(f"'{column}' {why}, so it is written as it is." if why else
+                               "The project has no fitted columns.")
+            else:
+                box.setToolTip(f"Which fitted column's parameters bring '{column}' back to "
+                               "original units; 'leave as is' writes it unchanged.")
+                if column in self._auto:
+                    box.setCurrentIndex(box.findData(self._auto[column]))
+            box.currentIndexChanged.connect(lambda _i, c=column: self._mapping_changed(c))
+            self._combos[column] = box
+            self.mapping_table.setCellWidget(r, 1, box)
+            self.mapping_table.setItem(r, 2, QTableWidgetItem())
+            self._show_match(column)
+        self._show_hint()
+        self._refresh_preview()
+
+    def _mapping_changed(self, column: str) -> None:
+        self.result_label.hide()
+        self._show_match(column)
+        self._show_hint()
+        self._refresh_preview()
+
+    def _show_match(self, column: str) -> None:
+        r = list(self._combos).index(column)
+        chosen = self._combos[column].currentData() or ""
+        auto = self._auto.get(column, "")
+        if not chosen:
+            text, tip = "", ("A column of the same name was fitted, but you chose to leave "
+                             "this one as it is." if auto else "Written as it is.")
+        elif chosen == auto:
+            text, tip = "by name", "Paired automatically: the names match."
+        else:
+            text, tip = "chosen by you", "Paired by you."
+        item = self.mapping_table.item(r, 2)
+        item.setText(text)
+        item.setToolTip(tip)
+
+    def _show_hint(self) -> None:
+        n = len(self.mapping())
+        if not self._fitted():
+            self.mapping_hint.setText("The project has no fitted columns, so nothing can be "
+                                      "restored with it.")
+            self.mapping_hint.setStyleSheet(f"color: {theme.WARNING};")
+        elif n:
+            self.mapping_hint.setText(
+                f"{plural(n, 'column')} will be restored; the others are written as they "
+                "are. Change a pair with the box on its row."
+            )
+            self.mapping_hint.setStyleSheet("")
+        else:
+            self.mapping_hint.setText(
+                "No column of this file has the name of a fitted column. Choose, with the "
+                "box on its row, which fitted column's parameters restore it."
+            )
+            self.mapping_hint.setStyleSheet(f"color: {theme.WARNING};")
+
+    # ------------------------------------------------------------------ preview
+
+    def _refresh_preview(self) -> None:
+        mapping = self.mapping()
+        notes: list[str] = []
+        frame = pd.DataFrame()
+        if self._table is not None and mapping and self._project is not None:
+            head = numbers_frame(self._table, mapping).iloc[:PREVIEW_ROWS]
+            try:
+                restored, reports = engine.restore(head, self._project.plan, mapping)
+            except ScalewrightError as err:
+                notes.append(str(err))
+            else:
+                parts = {}
+                for column, fitted in mapping.items():
+                    parts[f"{column} (as in the file)"] = head[column].reset_index(drop=True)
+                    parts[f"{column} (in {fitted} units)"] = (
+                        restored[column].reset_index(drop=True)
+                    )
+                frame = pd.DataFrame(parts)
+                notes += [f"{r.column}: {w}" for r in reports for w in r.warnings]
+        self._preview_frame = frame
+        self._preview_notes = notes
+        tips, texts = {}, {}
+        for column, fitted in mapping.items() if not frame.empty else ():
+            before, after = f"{column} (as in the file)", f"{column} (in {fitted} units)"
+            tips[before] = f"'{column}': scaled values as they are in the file."
+            tips[after] = f"'{column}': the same values in original units of '{fitted}'."
+            texts[before] = f"{column}\nas in the file"
+            texts[after] = f"{column}\nin {fitted} units"
+        self.preview_model.set_frame(frame, header_tips=tips, header_texts=texts)
+        self.preview_view.resizeColumnsToContents()
+        if notes:
+            self.preview_notes.setText("⚠  " + " ".join(notes))
+            self.preview_notes.setStyleSheet(f"color: {theme.WARNING};")
+        elif frame.empty:
+            self.preview_notes.setText("The preview appears once a column is paired.")
+            self.preview_notes.setStyleSheet(MUTED_STYLE)
+        else:
+            self.preview_notes.setText(f"The first {len(frame)} rows.")
+            self.preview_notes.setStyleSheet(MUTED_STYLE)
+        self._update_state()
+
+    # ------------------------------------------------------------------ state
+
+    def _data_problem(self) -> str:
+        if self._read_error:
+            return self._read_error
+        return ""
+
+    def _update_state(self) -> None:
+        data_problem = self._data_problem()
+        set_message(self.data_error, data_problem)
+        forbidden = [
+            (self.data_row.path(), "This is the file of scaled values. Choose another name, "
+                                   "so that it stays as it is."),
+            (Path(self._project.source) if self._project is not None and self._project.source
+             else None,
+             "This is the file the project was fitted on. Choose another name, so that it "
+             "stays as it is."),
+        ]
+        out_problem = self.output_row.problem(forbidden)
+        set_message(self.output_error, out_problem)
+        mapping = self.mapping()
+        ready = (
+            self._project is not None
+            and self._table is not None
+            and not data_problem
+            and bool(mapping)
+            and not self._preview_notes_block()
+            and self.output_row.path() is not None
+            and not out_problem
+            and not self.runner.busy
+        )
+        self.save_button.setEnabled(ready)
+        if self._project is None:
+            tip = "Choose a project or a scaled workbook first."
+        elif self._table is None:
+            tip = data_problem or "Choose the file of scaled values first."
+        elif not mapping:
+            tip = "Pair at least one column with a fitted column first."
+        elif self.output_row.path() is None:
+            tip = "Choose where to save the restored file first."
+        else:
+            tip = out_problem or "Restore the paired columns and save the result."
+        self.save_button.setToolTip(tip)
+
+    def _preview_notes_block(self) -> bool:
+        """True when the preview could not be made at all (the mapping is not usable)."""
+        return bool(self.mapping()) and self._preview_frame.empty and bool(self._preview_notes)
+
+    def _set_busy(self, busy: bool) -> None:
+        for w in (self.data_row, self.output_row, self.mapping_table, self.project_button):
+            w.setEnabled(not busy)
+        self._update_state()
+
+    # ------------------------------------------------------------------ writing
+
+    def save(self) -> None:
+        """Write the restored file in the background (does nothing unless Save is enabled)."""
+        self._update_state()
+        if not self.save_button.isEnabled():
+            return
+        project, data_path = self._project, self.data_row.path()
+        target, sheet, mapping = self.output_row.path(), self.data_row.sheet(), self.mapping()
+        # tasks.restore_file always restores the columns matched by name and adds the given
+        # pairs; when the user set a name match to "leave as is", restore exactly the pairs
+        # chosen here instead, through the same io, engine and writing calls.
+        dropped = any(c not in mapping for c in self._auto)
+
+        def write(progress, cancelled):
+            if not dropped:
+                return tasks.restore_file(project, data_path, target, mapping=mapping,
+                                          sheet=sheet, progress=progress, cancelled=cancelled)
+            return restore_exactly(project, data_path, target, mapping, sheet=sheet,
+                                   progress=progress, cancelled=cancelled)
+
+        self.start_write(f"Writing {target.name}…", write, target)
+
+    def _write_done(self, reports) -> None:
+        n = sum(r.n_values for r in reports)
+        text = (f"✓  Saved {self._written.name}: {plural(len(reports), 'column')} restored "
+                f"to original units ({plural(n, 'value')}).")
+        undefined = sum(r.n_undefined for r in reports)
+        if undefined:
+            text += f" {plural(undefined, 'value')} had no value in original units and were " \
+                    "left blank."
+        lines = tasks.describe_reports(reports, restoring=True)
+        self.show_result(text, OK_STYLE, details="\n".join(lines))
+        self.close_button.setText("Done")
+        self.close_button.setToolTip("Close this window; the file has been saved.")
+
+
+def restore_exactly(project, data_path, target, mapping, *, sheet=None, progress=None,
+                    cancelled=None) -> list[engine.ColumnReport]:
+    """Restore only the pairs in ``mapping`` (columns matched by name but not listed stay
+    as they are) and write ``target`` like ``tasks.restore_file`` does."""
+    half = (lambda f: progress(0.5 * f)) if progress is not None else None
+    rest = (lambda f: progress(0.5 + 0.5 * f)) if progress is not None else None
+    table = swio.read_table(data_path, swio.ReadOptions(sheet=sheet), progress=half,
+                            cancelled=cancelled)
+    for column in mapping:
+        if column not in table.data.columns:
+            raise ScalewrightError(f"column '{column}' is not in {table.source.name}")
+        if why := numeric_problem(table, column):
+            raise ScalewrightError(f"column '{column}' {why}, so it cannot be restored")
+    if project.source is not None:
+        swio.ensure_not_source(target, project.source)
+    data, reports = engine.restore(numbers_frame(table, mapping), project.plan, mapping)
+    tasks.write_output(target, data, table.headers, None, source=table.source,
+                       progress=rest, cancelled=cancelled)
+    return reports
+
+
+def _params_tip(fc) -> str:
+    m = engine.get_method(fc.method)
+    params = ", ".join(f"{k} = {v:.10g}" if isinstance(v, float) else f"{k} = {v}"
+                       for k, v in fc.pooled.params.items())
+    return f"{fc.column}, {m.name}. Saved parameters: {params}"
+
+
+def _html(text: str) -> str:
+    return text.replace("&", "&amp;").replace("<", "&lt;").replace(">", "&gt;")
