@@ -1,0 +1,676 @@
+"""The ``scalewright`` command: open the window, or fit, apply, restore and show in batch.
+
+The same calls as the window (``scalewright.tasks``), with no Qt import unless the window
+is asked for. Exit status: 0 success; 1 bad input, with one line ``scalewright: <message>``
+on standard error and no output file left behind; 2 a usage error (argparse).
+See ``docs/command-line.md``.
+"""
+
+from __future__ import annotations
+
+import argparse
+import contextlib
+import os
+import sys
+from collections.abc import Callable, Sequence
+from pathlib import Path
+from typing import Any
+
+from . import __version__
+from .errors import ColumnError, OptionError, ReadError, ScalewrightError, WriteError
+
+PROG = "scalewright"
+
+# --------------------------------------------------------------------------- help text
+
+DESCRIPTION = """\
+Scale the numeric columns of a table, keep every fitted parameter in a project file,
+re-apply them to new files and turn scaled values back into original units.
+
+Without a command, opens the window."""
+
+FIT_EXAMPLES = """\
+methods: none, minmax, zscore, decimal, robust, maxabs, log, boxcox, yeojohnson
+options: minmax:low=-1,high=1   zscore:sd=population   log:base=10
+         boxcox:standardize=yes   yeojohnson:standardize=yes
+
+examples:
+  scalewright fit harvest_2025.csv -m yield_kg=zscore -p yield.swproj
+  scalewright fit harvest_2025.csv -m '*=zscore' -m pest_trap_count=yeojohnson \\
+      --fit-where split=train -p harvest.swproj -o harvest_2025_scaled.xlsx
+  scalewright fit harvest_2025.xlsx --sheet harvest_2025 -m soil_ph=minmax:low=-1,high=1 \\
+      --group-by orchard -p soil.swproj"""
+
+APPLY_EXAMPLES = """\
+examples:
+  scalewright apply harvest.swproj harvest_2026.csv -o harvest_2026_scaled.csv
+  scalewright apply harvest_2025_scaled.xlsx harvest_2026.xlsx -o harvest_2026_scaled.xlsx --clip"""
+
+RESTORE_EXAMPLES = """\
+examples:
+  scalewright restore harvest.swproj harvest_2026_scaled.csv -o harvest_2026_restored.csv
+  scalewright restore harvest_2025_scaled.xlsx predicted_yield_scaled.csv \\
+      --as predicted_yield=yield_kg -o predicted_yield_kg.csv"""
+
+SHOW_EXAMPLES = """\
+examples:
+  scalewright show harvest.swproj
+  scalewright show harvest_2025_scaled.xlsx"""
+
+
+class _Formatter(argparse.RawDescriptionHelpFormatter):
+    pass
+
+
+class UsageError(Exception):
+    """A command line that cannot be understood (exit status 2)."""
+
+
+def build_parser() -> argparse.ArgumentParser:
+    parser = argparse.ArgumentParser(
+        prog=PROG,
+        description=DESCRIPTION,
+        formatter_class=_Formatter,
+        epilog="Run 'scalewright COMMAND --help' for the options and examples of a command.",
+    )
+    parser.add_argument("--version", action="version", version=f"%(prog)s {__version__}")
+    commands = parser.add_subparsers(dest="command", metavar="COMMAND")
+
+    p = commands.add_parser(
+        "open",
+        help="open the window on a data or project file",
+        description="Open the window on a data file (.csv, .tsv, .xlsx, ...) or a project "
+        "(.swproj).",
+        epilog="example:\n  scalewright open harvest_2025.csv",
+        formatter_class=_Formatter,
+    )
+    p.add_argument("file", metavar="FILE", help="data file or project file")
+
+    p = commands.add_parser(
+        "fit",
+        help="fit methods to the columns of a data file and save the project",
+        description="Fit a scaling method to columns of DATA and save the fitted parameters "
+        "in a project file (and, with -o, the scaled data).",
+        epilog=FIT_EXAMPLES,
+        formatter_class=_Formatter,
+    )
+    p.add_argument("data", metavar="DATA", help="the data file to fit on")
+    p.add_argument(
+        "-m",
+        "--method",
+        metavar="COLUMN=METHOD[:OPT=VALUE,...]",
+        action="append",
+        required=True,
+        help="the method for a column; '*=METHOD' for every numeric column (a -m naming a "
+        "column overrides '*'); repeat for more columns",
+    )
+    p.add_argument(
+        "-p",
+        "--project",
+        metavar="PROJECT",
+        required=True,
+        help="the project file to write (.swproj)",
+    )
+    p.add_argument("--sheet", metavar="NAME", help="the worksheet to read (workbooks)")
+    p.add_argument(
+        "--group-by", metavar="COLUMN", help="fit one set of parameters per value of COLUMN"
+    )
+    p.add_argument(
+        "--fit-where",
+        metavar="COLUMN=VALUE",
+        help="fit only on the rows where COLUMN is VALUE (for example split=train); "
+        "every row is still scaled",
+    )
+    p.add_argument(
+        "-o", "--output", metavar="SCALED", help="also write the scaled data (.xlsx, .csv or .tsv)"
+    )
+
+    p = commands.add_parser(
+        "apply",
+        help="scale a new file with the parameters of a project",
+        description="Scale DATA with the parameters saved in PROJECT (a .swproj file or a "
+        "scaled workbook); nothing is refitted. Prints, per column, how many values lie "
+        "outside the range the parameters were fitted on.",
+        epilog=APPLY_EXAMPLES,
+        formatter_class=_Formatter,
+    )
+    p.add_argument("project", metavar="PROJECT", help="project file or scaled workbook")
+    p.add_argument("data", metavar="DATA", help="the data file to scale")
+    p.add_argument(
+        "-o",
+        "--output",
+        metavar="OUTPUT",
+        required=True,
+        help="the scaled file to write (.xlsx, .csv or .tsv)",
+    )
+    p.add_argument("--sheet", metavar="NAME", help="the worksheet to read (workbooks)")
+    p.add_argument(
+        "--clip",
+        action="store_true",
+        help="move values outside the fitted range to its nearest end first",
+    )
+
+    p = commands.add_parser(
+        "restore",
+        help="turn scaled values back into original units",
+        description="Turn the scaled columns of DATA back into original units with the "
+        "parameters of PROJECT_OR_WORKBOOK. Columns with the name of a fitted column are "
+        "restored; --as restores a differently named column; other columns pass through.",
+        epilog=RESTORE_EXAMPLES,
+        formatter_class=_Formatter,
+    )
+    p.add_argument("project", metavar="PROJECT_OR_WORKBOOK", help="project file or scaled workbook")
+    p.add_argument("data", metavar="DATA", help="the file with scaled values")
+    p.add_argument(
+        "-o",
+        "--output",
+        metavar="OUTPUT",
+        required=True,
+        help="the restored file to write (.xlsx, .csv or .tsv)",
+    )
+    p.add_argument("--sheet", metavar="NAME", help="the worksheet to read (workbooks)")
+    p.add_argument(
+        "--as",
+        dest="mapping",
+        metavar="COLUMN=SOURCE_COLUMN",
+        action="append",
+        default=[],
+        help="restore COLUMN of DATA with the parameters fitted for SOURCE_COLUMN",
+    )
+
+    p = commands.add_parser(
+        "show",
+        help="print a project as a readable table",
+        description="Print the project: its data file, the rows fitted on, and per column "
+        "the method, options, key parameters and warnings.",
+        epilog=SHOW_EXAMPLES,
+        formatter_class=_Formatter,
+    )
+    p.add_argument("project", metavar="PROJECT", help="project file or scaled workbook")
+    return parser
+
+
+# --------------------------------------------------------------------------- progress
+
+
+class TerminalProgress:
+    """Percentages on standard error, only when it is a terminal."""
+
+    def __init__(self, label: str, stream=None) -> None:
+        self.stream = stream or sys.stderr
+        self.label = label
+        self.last = -1
+        try:
+            self.enabled = self.stream.isatty()
+        except (AttributeError, ValueError):
+            self.enabled = False
+
+    def __call__(self, fraction: float) -> None:
+        if not self.enabled:
+            return
+        percent = int(max(0.0, min(1.0, fraction)) * 100)
+        if percent != self.last:
+            self.last = percent
+            self.stream.write(f"\r{self.label}: {percent:3d}%")
+            self.stream.flush()
+
+    def done(self) -> None:
+        if self.enabled and self.last >= 0:
+            self.stream.write("\r" + " " * (len(self.label) + 6) + "\r")
+            self.stream.flush()
+            self.last = -1
+
+    @property
+    def callback(self) -> Callable[[float], None] | None:
+        return self if self.enabled else None
+
+
+@contextlib.contextmanager
+def _progress(label: str):
+    bar = TerminalProgress(label)
+    try:
+        yield bar.callback
+    finally:
+        bar.done()
+
+
+# --------------------------------------------------------------------------- parsing
+
+
+def _split_pair(text: str, what: str, example: str) -> tuple[str, str]:
+    left, sep, right = text.partition("=")
+    if not sep or not left.strip() or not right.strip():
+        raise OptionError(f"{what} '{text}' must be written {example}")
+    return left.strip(), right.strip()
+
+
+def parse_method_spec(text: str) -> tuple[str, str, dict[str, str]]:
+    """``COLUMN=METHOD[:OPT=VALUE,...]`` -> (column, method id, raw options).
+
+    A column name may itself hold ``=`` or ``:``: the split is at the ``=`` followed by a
+    known method id.
+    """
+    from .engine import METHODS, get_method
+
+    example = "COLUMN=METHOD[:OPT=VALUE,...], for example yield_kg=zscore:sd=population"
+    best = None
+    for i, ch in enumerate(text):
+        if ch == "=" and i > 0 and text[i + 1 :].partition(":")[0].strip().lower() in METHODS:
+            best = i
+            break
+    if best is None:
+        _column, method_part = _split_pair(text, "-m", example)
+        try:
+            get_method(method_part.partition(":")[0])
+        except OptionError as err:
+            raise OptionError(f"-m '{text}': {err}") from None
+        raise OptionError(f"-m '{text}' must be written {example}")
+    column, method_part = text[:best].strip(), text[best + 1 :]
+    method_id, colon, opt_text = method_part.partition(":")
+    options: dict[str, str] = {}
+    if colon:
+        if not opt_text.strip():
+            raise OptionError(f"-m '{text}': no options after ':' (write OPT=VALUE,...)")
+        for item in opt_text.split(","):
+            name, sep, value = item.partition("=")
+            if not sep or not name.strip() or not value.strip():
+                raise OptionError(
+                    f"-m '{text}': the option '{item}' must be written OPT=VALUE "
+                    "(for example low=-1)"
+                )
+            if name.strip() in options:
+                raise OptionError(f"-m '{text}': the option '{name.strip()}' is given twice")
+            options[name.strip()] = value.strip()
+    return column, method_id.strip().lower(), options
+
+
+def parse_method_specs(specs: Sequence[str]) -> list[tuple[str, Any, str]]:
+    """Check every ``-m`` before any file is read: [(column, normalized choice, spec)]."""
+    from .engine import ColumnChoice, get_method
+
+    out = []
+    for spec in specs:
+        column, method_id, raw = parse_method_spec(spec)
+        method = get_method(method_id)
+        try:
+            options = method.options(raw)
+        except OptionError as err:
+            raise OptionError(f"-m '{spec}': {err}") from None
+        out.append((column, ColumnChoice(method.id, options), spec))
+    return out
+
+
+def build_choices(table, specs: Sequence[tuple[str, Any, str]], group_by: str | None = None):
+    """Choices from parsed ``-m`` arguments: '*' covers every numeric column (except the
+    grouping column); a named column overrides '*', and a later -m an earlier one."""
+    from .io import ColumnKind
+
+    star: Any = None
+    named: dict[str, Any] = {}
+    for column, choice, _spec in specs:
+        if column == "*":
+            star = choice
+            continue
+        if column not in table.data.columns:
+            raise ColumnError(
+                column,
+                f"there is no such column in {table.source.name} "
+                f"(columns: {_name_list(table.data.columns)})",
+            )
+        named[column] = choice
+    choices: dict = {}
+    if star is not None:
+        for label, kind in table.kinds.items():
+            if kind == ColumnKind.NUMBER and label != group_by:
+                choices[label] = star
+    choices.update(named)
+    return choices
+
+
+def _name_list(names, limit: int = 12) -> str:
+    names = [str(n) for n in names]
+    shown = ", ".join(names[:limit])
+    return shown + (f", ... ({len(names)} in all)" if len(names) > limit else "")
+
+
+def parse_mapping(pairs: Sequence[str], fitted: Sequence[str]) -> dict[str, str]:
+    """``--as COLUMN=SOURCE_COLUMN`` pairs; the split prefers an ``=`` followed by a fitted
+    column name, so either name may contain ``=``."""
+    out: dict[str, str] = {}
+    for text in pairs:
+        split = None
+        for i, ch in enumerate(text):
+            if ch == "=" and text[i + 1 :].strip() in fitted and text[:i].strip():
+                split = i
+                break
+        if split is None:
+            column, source = _split_pair(text, "--as", "COLUMN=SOURCE_COLUMN")
+        else:
+            column, source = text[:split].strip(), text[split + 1 :].strip()
+        if column in out:
+            raise OptionError(f"--as names the column '{column}' twice")
+        out[column] = source
+    return out
+
+
+def _check_output(output: str, data: str, project: str | None = None) -> Path:
+    """The output path, refused early if it is a project name, an unknown format, the
+    data file being read or the project (or workbook) the parameters come from."""
+    from .io import SUPPORTED_WRITE, ensure_not_source
+    from .project import SUFFIX
+
+    target = Path(output)
+    suffix = target.suffix.lower()
+    if suffix == SUFFIX:
+        raise WriteError(
+            target,
+            "this name is for project files; the output is a data file "
+            f"({', '.join(SUPPORTED_WRITE)})",
+        )
+    if suffix not in SUPPORTED_WRITE:
+        raise WriteError(
+            target,
+            f"cannot write '{suffix or 'no extension'}' files; use one of "
+            + ", ".join(SUPPORTED_WRITE),
+        )
+    ensure_not_source(target, data)
+    if project is not None:
+        try:
+            ensure_not_source(target, project)
+        except WriteError:
+            raise WriteError(
+                target,
+                "this is the file the parameters come from; choose another name so it "
+                "stays as it is",
+            ) from None
+    return target
+
+
+# --------------------------------------------------------------------------- commands
+
+
+def _open_window(path: str | None) -> int:
+    if path is not None and not Path(path).exists():
+        raise ReadError(path, "there is no such file")
+    try:
+        from .gui.app import main as window_main
+    except ImportError as err:
+        if (err.name or "").startswith(("PySide6", "shiboken6", "pyqtgraph")):
+            raise ScalewrightError(
+                "the window needs PySide6 (pip install PySide6-Essentials)"
+            ) from None
+        raise ScalewrightError(f"the window cannot start ({err})") from None
+    status = window_main(path=path)
+    return int(status or 0)
+
+
+def cmd_fit(args: argparse.Namespace) -> int:
+    from .engine import FitSettings
+    from .io import ReadOptions, ensure_not_source, read_table
+    from .project import SUFFIX, project_to_json, save_project
+    from .tasks import export_scaled, fit_project
+
+    project_path = Path(args.project)
+    if project_path.suffix.lower() != SUFFIX:
+        raise WriteError(project_path, f"a project file name must end in {SUFFIX}")
+    ensure_not_source(project_path, args.data)
+    if not project_path.absolute().parent.is_dir():
+        raise WriteError(project_path, "the folder does not exist")
+    output = _check_output(args.output, args.data, args.project) if args.output else None
+    specs = parse_method_specs(args.method)
+    fit_where = None
+    if args.fit_where is not None:
+        fit_where = _split_pair(args.fit_where, "--fit-where", "COLUMN=VALUE, e.g. split=train")
+
+    with _progress("reading") as progress:
+        table = read_table(args.data, ReadOptions(sheet=args.sheet), progress=progress)
+    if fit_where is not None and fit_where[0] not in table.data.columns:
+        raise ColumnError(
+            fit_where[0], f"(--fit-where) there is no such column in {table.source.name}"
+        )
+    if args.group_by is not None and args.group_by not in table.data.columns:
+        raise ColumnError(
+            args.group_by, f"(--group-by) there is no such column in {table.source.name}"
+        )
+    choices = build_choices(table, specs, args.group_by)
+    if not any(c.method != "none" for c in choices.values()):
+        raise OptionError(
+            "no column to fit: every -m chose 'none' or '*' matched no numeric column"
+        )
+    project = fit_project(table, choices, FitSettings(fit_where, args.group_by))
+    project_to_json(project, project_path)  # any field that cannot be saved fails here
+    created_output = False
+    if output is not None:
+        existed = output.exists()
+        with _progress("writing") as progress:
+            reports = export_scaled(table, project, output, progress=progress)
+        created_output = not existed
+    try:
+        save_project(project, project_path)
+    except BaseException:
+        if created_output:
+            with contextlib.suppress(OSError):
+                output.unlink()  # type: ignore[union-attr]
+        raise
+    plan = project.plan
+    assert plan is not None
+    where = ""
+    if plan.settings.fit_where is not None:
+        where = f" where {plan.settings.fit_where[0]} is {plan.settings.fit_where[1]}"
+    print(
+        f"fitted {len(plan.columns)} column{'s' if len(plan.columns) != 1 else ''} on "
+        f"{plan.n_rows:,} rows{where}; project saved to {project_path}"
+    )
+    for line in show_lines(project, project_path, header=False):
+        print(line)
+    if output is not None:
+        print(f"scaled data written to {output}")
+        for line in _report_notes(reports):
+            print(line)
+    return 0
+
+
+def _report_notes(reports) -> list[str]:
+    from .tasks import describe_reports
+
+    return [line for line in describe_reports(reports) if line.startswith("  note:")]
+
+
+def cmd_apply(args: argparse.Namespace) -> int:
+    from .tasks import apply_to_file, describe_reports, load_project_or_workbook
+
+    output = _check_output(args.output, args.data, args.project)
+    project = load_project_or_workbook(args.project)
+    with _progress("scaling") as progress:
+        reports = apply_to_file(
+            project, args.data, output, clip=args.clip, sheet=args.sheet, progress=progress
+        )
+    for line in describe_reports(reports):
+        print(line)
+    print(f"scaled data written to {output}")
+    return 0
+
+
+def cmd_restore(args: argparse.Namespace) -> int:
+    from .tasks import describe_reports, load_project_or_workbook, restore_file
+
+    output = _check_output(args.output, args.data, args.project)
+    project = load_project_or_workbook(args.project)
+    if project.plan is None:
+        raise ScalewrightError(f"{args.project}: the project has no fitted parameters")
+    mapping = parse_mapping(args.mapping, list(project.plan.columns))
+    with _progress("restoring") as progress:
+        reports = restore_file(
+            project, args.data, output, mapping=mapping, sheet=args.sheet, progress=progress
+        )
+    for line in describe_reports(reports, restoring=True):
+        print(line)
+    print(f"restored data written to {output}")
+    return 0
+
+
+def cmd_show(args: argparse.Namespace) -> int:
+    from .tasks import load_project_or_workbook
+
+    project = load_project_or_workbook(args.project)
+    path = Path(args.project)
+    for line in show_lines(project, path if path.suffix.lower() == ".swproj" else None):
+        print(line)
+    return 0
+
+
+# --------------------------------------------------------------------------- show
+
+_KEY_PARAMS = {
+    "minmax": ("min", "max", "low", "high"),
+    "zscore": ("mean", "sd"),
+    "decimal": ("j",),
+    "robust": ("median", "q1", "q3", "scale"),
+    "maxabs": ("maxabs",),
+    "log": ("shift",),
+    "boxcox": ("lambda", "mean", "sd"),
+    "yeojohnson": ("lambda", "mean", "sd"),
+}
+
+
+def _number(v: Any) -> str:
+    if isinstance(v, float):
+        return f"{v:.10g}"
+    return str(v)
+
+
+def key_parameters(method: str, params: dict) -> str:
+    keys = _KEY_PARAMS.get(method, tuple(params))
+    return ", ".join(f"{k}={_number(params[k])}" for k in keys if k in params)
+
+
+def _table(rows: list[list[str]]) -> list[str]:
+    widths = [max(len(r[i]) for r in rows) for i in range(len(rows[0]))]
+    lines = []
+    for n, r in enumerate(rows):
+        lines.append("  ".join(c.ljust(w) for c, w in zip(r, widths, strict=True)).rstrip())
+        if n == 0:
+            lines.append("  ".join("-" * w for w in widths))
+    return lines
+
+
+def show_lines(project, project_path: Path | None, *, header: bool = True) -> list[str]:
+    """The project as plain lines: where it came from, then one row per fitted column."""
+    from .engine import get_method
+    from .project import locate_source, options_text
+
+    lines: list[str] = []
+    plan = project.plan
+    settings = plan.settings if plan is not None else project.settings
+    if header:
+        check = locate_source(project, project_path)
+        lines.append(f"data file:   {project.source if project.source else '(none)'}")
+        if check.saved is not None:
+            if not check.found:
+                lines.append("             not found (nor beside the project file)")
+            else:
+                if check.moved:
+                    lines.append(f"             found beside the project: {check.path}")
+                if check.changed:
+                    lines.append("             changed since the parameters were fitted")
+        read = project.read_options.to_dict()
+        shown = ", ".join(f"{k}={v!r}" for k, v in read.items() if v not in (None, ""))
+        lines.append(f"read with:   {shown or 'detected settings'}")
+        rows_line = f"{plan.n_rows:,} rows" if plan is not None else "not fitted yet"
+        if settings.fit_where is not None:
+            rows_line += f" where {settings.fit_where[0]} is {settings.fit_where[1]}"
+        lines.append(f"fitted on:   {rows_line}")
+        if settings.group_by is not None:
+            lines.append(f"grouped by:  {settings.group_by}")
+        lines.append(
+            f"saved:       {project.modified} (created {project.created}, "
+            f"Scalewright {project.app_version})"
+        )
+        lines.append("")
+    if plan is None or not plan.columns:
+        lines.append("no fitted columns")
+        return lines
+    rows = [["column", "method", "options", "key parameters", "fitted on", "warnings"]]
+    notes: list[str] = []
+    for label, fc in plan.columns.items():
+        method = get_method(fc.method)
+        rows.append(
+            [
+                label,
+                method.name,
+                options_text(fc.options) or "-",
+                key_parameters(fc.method, fc.pooled.params),
+                f"{fc.pooled.n:,} values",
+                str(len(fc.warnings)) if fc.warnings else "-",
+            ]
+        )
+        for key, ps in fc.groups.items():
+            rows.append(
+                [
+                    "",
+                    f"  {settings.group_by} = {key}",
+                    "",
+                    key_parameters(fc.method, ps.params),
+                    f"{ps.n:,} values",
+                    "",
+                ]
+            )
+        notes += [f"{label}: {w}" for w in fc.warnings]
+    lines += _table(rows)
+    left = sorted(set(project.choices) - set(plan.columns))
+    if left:
+        lines.append(f"left as is: {_name_list(left)}")
+    if notes:
+        lines.append("")
+        lines.append("warnings:")
+        lines += [f"  {n}" for n in notes]
+    return lines
+
+
+# --------------------------------------------------------------------------- main
+
+_COMMANDS: dict[str, Callable[[argparse.Namespace], int]] = {
+    "fit": cmd_fit,
+    "apply": cmd_apply,
+    "restore": cmd_restore,
+    "show": cmd_show,
+    "open": lambda args: _open_window(args.file),
+}
+
+
+def _one_line(message: str) -> str:
+    return " ".join(str(message).split())
+
+
+def _fail(message: str) -> int:
+    sys.stderr.write(f"{PROG}: {_one_line(message)}\n")
+    sys.stderr.flush()
+    return 1
+
+
+def main(argv: Sequence[str] | None = None) -> int:
+    """Run the command line; return the exit status."""
+    parser = build_parser()
+    args = parser.parse_args(argv)  # exits with status 2 on a usage error
+    try:
+        if args.command is None:
+            return _open_window(None)
+        return _COMMANDS[args.command](args)
+    except ScalewrightError as err:
+        return _fail(str(err))
+    except OSError as err:
+        if isinstance(err, BrokenPipeError):  # output piped into a program that stopped
+            with contextlib.suppress(OSError):
+                sys.stdout = open(os.devnull, "w")  # noqa: SIM115
+            return 1
+        where = f"{err.filename}: " if err.filename else ""
+        return _fail(f"{where}{err.strerror or err}")
+    except MemoryError:
+        return _fail("not enough memory for this file")
+    except KeyboardInterrupt:
+        sys.stderr.write(f"\n{PROG}: interrupted\n")
+        return 130
+    except Exception as err:  # a bug: still one line, never a traceback
+        if os.environ.get("SCALEWRIGHT_DEBUG"):
+            raise
+        return _fail(f"unexpected error ({type(err).__name__}: {err}); please report this")

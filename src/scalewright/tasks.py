@@ -1,0 +1,389 @@
+"""The jobs the window and the command line both run: fit, export, apply, restore.
+
+Plain functions over ``io``, ``engine`` and ``project``, with no Qt. Long jobs take
+``progress`` (called with a fraction 0..1) and ``cancelled`` (polled; when it returns True
+the job raises :class:`~scalewright.errors.Cancelled` and leaves no output file), and pass
+them on to the io layer.
+"""
+
+from __future__ import annotations
+
+import os
+import re
+from collections.abc import Callable, Mapping, Sequence
+from pathlib import Path
+
+import pandas as pd
+
+from . import __version__
+from .engine import ColumnChoice, ColumnReport, FitSettings, apply, fit, get_method, restore
+from .errors import ColumnError, ProjectError, ReadError, ScalewrightError, WriteError
+from .io import (
+    SUPPORTED_WRITE,
+    ColumnKind,
+    ReadOptions,
+    Table,
+    ensure_not_source,
+    fingerprint,
+    read_embedded_project,
+    read_table,
+    write_scaled_workbook,
+    write_table,
+)
+from .project import (
+    SUFFIX,
+    Project,
+    load_project,
+    now_iso,
+    parameter_sheet,
+    project_from_json,
+    project_to_json,
+)
+
+Progress = Callable[[float], None]
+CancelCheck = Callable[[], bool]
+
+_NOT_SCALED = {
+    ColumnKind.IDENTIFIER: "is an identifier column; identifiers are never scaled",
+    ColumnKind.DATE: "is a date column; dates are never scaled",
+    ColumnKind.BOOLEAN: "is a yes/no column, not numbers, so it cannot be scaled",
+    ColumnKind.TEXT: "is a text column, not numbers, so it cannot be scaled",
+    ColumnKind.EMPTY: "is empty, so there is nothing to scale",
+}
+
+
+def _part(progress: Progress | None, start: float, end: float) -> Progress | None:
+    """A progress callback for one stage of a job, mapped onto [start, end]."""
+    if progress is None:
+        return None
+    return lambda f: progress(start + (end - start) * min(max(f, 0.0), 1.0))
+
+
+# --------------------------------------------------------------------------- fitting
+
+
+def check_choices(table: Table, choices: Mapping[str, ColumnChoice]) -> None:
+    """Refuse a method on a column that is not numbers (identifiers, dates, text)."""
+    for label, choice in choices.items():
+        if label not in table.data.columns:
+            raise ColumnError(label, "there is no such column in " + table.source.name)
+        if get_method(choice.method).id == "none":
+            continue
+        kind = table.kinds.get(label)
+        if kind is not None and kind != ColumnKind.NUMBER:
+            raise ColumnError(label, _NOT_SCALED.get(kind, "is not a numeric column"))
+
+
+def fit_project(
+    table: Table,
+    choices: Mapping[str, ColumnChoice],
+    settings: FitSettings | None = None,
+) -> Project:
+    """Fit ``choices`` on ``table`` and return the project that records it all."""
+    settings = settings or FitSettings()
+    check_choices(table, choices)
+    normalized = {label: choice.normalized() for label, choice in choices.items()}
+    plan = fit(table.data, normalized, settings)
+    source = size = sha = None
+    if table.source is not None and Path(table.source).is_file():
+        source = Path(os.path.abspath(table.source))
+        size, sha = fingerprint(source)
+    stamp = now_iso()
+    return Project(
+        source=source,
+        source_size=size,
+        source_sha256=sha,
+        read_options=table.options,
+        columns=[str(c) for c in table.data.columns],
+        headers=list(table.headers),
+        choices=normalized,
+        settings=settings,
+        plan=plan,
+        created=stamp,
+        modified=stamp,
+        app_version=__version__,
+    )
+
+
+def _fitted(project: Project):
+    if project.plan is None:
+        raise ProjectError("project", "has no fitted parameters yet; fit it first")
+    return project.plan
+
+
+def scaled_data(
+    table: Table, project: Project, *, clip: bool = False
+) -> tuple[pd.DataFrame, list[ColumnReport]]:
+    """The table's data with every fitted column scaled; other columns untouched."""
+    return apply(table.data, _fitted(project), clip=clip)
+
+
+# --------------------------------------------------------------------------- writing
+
+
+def write_output(
+    target: str | os.PathLike,
+    data: Table | pd.DataFrame,
+    headers: Sequence[str] | None,
+    project: Project | None,
+    *,
+    source: str | os.PathLike | None = None,
+    progress: Progress | None = None,
+    cancelled: CancelCheck | None = None,
+) -> None:
+    """Write ``data`` to ``target`` in the format its extension names.
+
+    ``.xlsx`` with a fitted ``project`` is a scaled workbook (data, parameters sheet and the
+    project embedded); otherwise the plain table. Neither ``source`` (the file the data was
+    read from) nor the project's own data file is ever overwritten.
+    """
+    target = Path(target)
+    if isinstance(data, Table):
+        source = data.source if source is None else source
+        headers = data.headers if headers is None else headers
+        data = data.data
+    if headers is None:
+        headers = [str(c) for c in data.columns]
+    suffix = target.suffix.lower()
+    if suffix == SUFFIX:
+        raise WriteError(target, "this name is for project files; choose a data file name")
+    if suffix not in SUPPORTED_WRITE:
+        raise WriteError(
+            target,
+            f"cannot write '{suffix or 'no extension'}' files; use one of "
+            + ", ".join(SUPPORTED_WRITE),
+        )
+    ensure_not_source(target, source)
+    if project is not None:
+        ensure_not_source(target, project.source)
+    if target.is_dir():
+        raise WriteError(target, "this is a folder; give a file name")
+    if suffix == ".xlsx" and project is not None and project.plan is not None:
+        write_scaled_workbook(
+            target,
+            data,
+            list(headers),
+            parameter_sheet(project.plan),
+            project_to_json(project),
+            progress=progress,
+            cancelled=cancelled,
+        )
+    else:
+        write_table(target, data, list(headers), progress=progress, cancelled=cancelled)
+
+
+def export_scaled(
+    table: Table,
+    project: Project,
+    target: str | os.PathLike,
+    *,
+    clip: bool = False,
+    progress: Progress | None = None,
+    cancelled: CancelCheck | None = None,
+) -> list[ColumnReport]:
+    """Scale ``table`` with the project's parameters and write it to ``target``."""
+    data, reports = scaled_data(table, project, clip=clip)
+    write_output(
+        target,
+        data,
+        table.headers,
+        project,
+        source=table.source,
+        progress=progress,
+        cancelled=cancelled,
+    )
+    return reports
+
+
+def _read(
+    path: str | os.PathLike,
+    sheet: str | None,
+    progress: Progress | None,
+    cancelled: CancelCheck | None,
+) -> Table:
+    return read_table(path, ReadOptions(sheet=sheet), progress=progress, cancelled=cancelled)
+
+
+def apply_to_file(
+    project: Project,
+    data_path: str | os.PathLike,
+    target: str | os.PathLike,
+    *,
+    clip: bool = False,
+    sheet: str | None = None,
+    progress: Progress | None = None,
+    cancelled: CancelCheck | None = None,
+) -> list[ColumnReport]:
+    """Scale a new file with the saved parameters (nothing is refitted).
+
+    The new file's layout is detected afresh (``sheet`` picks a worksheet). The reports
+    count, per column, the values outside the range the parameters were fitted on; with
+    ``clip`` those are moved to the nearest end of that range first.
+    """
+    plan = _fitted(project)
+    table = _read(data_path, sheet, _part(progress, 0.0, 0.5), cancelled)
+    _check_fitted_columns_numeric(table, plan.columns)
+    data, reports = apply(_blank_as_numbers(table, plan.columns), plan, clip=clip)
+    write_output(
+        target,
+        data,
+        table.headers,
+        project,
+        source=table.source,
+        progress=_part(progress, 0.5, 1.0),
+        cancelled=cancelled,
+    )
+    return reports
+
+
+def _check_fitted_columns_numeric(table: Table, columns: Sequence[str]) -> None:
+    for label in columns:
+        if label not in table.data.columns:
+            raise ColumnError(label, f"was fitted in the project but is not in {table.source.name}")
+        kind = table.kinds.get(label)
+        if kind is not None and kind not in (ColumnKind.NUMBER, ColumnKind.EMPTY):
+            raise ColumnError(
+                label,
+                f"holds {kind} values in {table.source.name}, not numbers, so it cannot be "
+                "scaled or restored",
+            )
+
+
+def _blank_as_numbers(table: Table, columns: Sequence[str]) -> pd.DataFrame:
+    """The data with wholly blank columns among ``columns`` as float (all missing)."""
+    empty = [c for c in columns if table.kinds.get(c) == ColumnKind.EMPTY]
+    if not empty:
+        return table.data
+    data = table.data.copy()
+    for c in empty:
+        data[c] = pd.Series(float("nan"), index=data.index, dtype="float64")
+    return data
+
+
+def restore_file(
+    project: Project,
+    data_path: str | os.PathLike,
+    target: str | os.PathLike,
+    *,
+    mapping: Mapping[str, str] | None = None,
+    sheet: str | None = None,
+    progress: Progress | None = None,
+    cancelled: CancelCheck | None = None,
+) -> list[ColumnReport]:
+    """Turn scaled values in ``data_path`` back into original units and write ``target``.
+
+    Columns are matched to fitted columns by :func:`auto_mapping`; ``mapping`` adds or
+    overrides pairs (file column -> fitted column, e.g. ``{"predicted_yield": "yield_kg"}``).
+    Columns not restored pass through untouched. The output is a plain table.
+    """
+    plan = _fitted(project)
+    table = _read(data_path, sheet, _part(progress, 0.0, 0.5), cancelled)
+    pairs = auto_mapping(list(table.data.columns), project)
+    for column, fitted in (mapping or {}).items():
+        if column not in table.data.columns:
+            raise ColumnError(column, f"is not in {table.source.name}")
+        if fitted not in plan.columns:
+            fitted_names = ", ".join(plan.columns) or "none"
+            raise ColumnError(
+                fitted, f"has no fitted parameters in the project (fitted: {fitted_names})"
+            )
+        pairs[column] = fitted
+    if not pairs:
+        raise ScalewrightError(
+            f"{table.source.name}: no column matches a fitted column of the project "
+            f"(fitted: {', '.join(plan.columns) or 'none'}); name the pairs with --as "
+            "COLUMN=FITTED_COLUMN"
+        )
+    _check_fitted_columns_numeric(table, list(pairs))
+    if project.source is not None:
+        ensure_not_source(target, project.source)
+    data, reports = restore(_blank_as_numbers(table, pairs), plan, pairs)
+    write_output(
+        target,
+        data,
+        table.headers,
+        None,
+        source=table.source,
+        progress=_part(progress, 0.5, 1.0),
+        cancelled=cancelled,
+    )
+    return reports
+
+
+def load_project_or_workbook(path: str | os.PathLike) -> Project:
+    """A project from a ``.swproj`` file or from a scaled workbook that embeds one."""
+    path = Path(path)
+    suffix = path.suffix.lower()
+    if suffix == SUFFIX:
+        return load_project(path)
+    if suffix in (".xlsx", ".xlsm"):
+        if not path.is_file():
+            raise ReadError(path, "there is no such file")
+        text = read_embedded_project(path)
+        if text is None:
+            raise ProjectError(
+                path,
+                "holds no Scalewright project (only scaled workbooks written by Scalewright do)",
+            )
+        return project_from_json(text, f"{path} (embedded project)")
+    raise ProjectError(path, f"is not a project file ({SUFFIX}) or a scaled workbook (.xlsx)")
+
+
+def _loose(name: str) -> str:
+    return re.sub(r"[\s_]+", "", name).casefold()
+
+
+def auto_mapping(columns: Sequence[str], project: Project) -> dict[str, str]:
+    """Pair each data column with the fitted column of the same name.
+
+    Exact names first; then names equal when case, spaces and underscores are ignored
+    (``Yield KG`` -> ``yield_kg``), but only where that match is unambiguous.
+    """
+    fitted = list(_fitted(project).columns)
+    loose: dict[str, list[str]] = {}
+    for name in fitted:
+        loose.setdefault(_loose(name), []).append(name)
+    out: dict[str, str] = {}
+    for column in columns:
+        if column in fitted:
+            out[column] = column
+            continue
+        candidates = loose.get(_loose(column), [])
+        if len(candidates) == 1:
+            out[column] = candidates[0]
+    return out
+
+
+# --------------------------------------------------------------------------- reporting
+
+
+def _count(n: int, word: str) -> str:
+    return f"{n:,} {word}{'' if n == 1 else 's'}"
+
+
+# Warnings the count lines below already say in other words.
+_COUNTED = ("fitted range", "infinite values were passed", "left blank")
+
+
+def describe_reports(reports: Sequence[ColumnReport], *, restoring: bool = False) -> list[str]:
+    """One plain line per column (values, out-of-range counts, clipping) plus its notes."""
+    lines = []
+    for r in reports:
+        name = r.column if r.column == r.fitted_as else f"{r.column} (as {r.fitted_as})"
+        parts = [_count(r.n_values, "value") + (" restored" if restoring else "")]
+        if not restoring:
+            if r.n_outside:
+                parts.append(
+                    f"{r.n_below:,} below and {r.n_above:,} above the fitted range"
+                    + (", clipped into it" if r.n_clipped else "")
+                )
+            else:
+                parts.append("none outside the fitted range")
+        if r.n_undefined:
+            units = "original" if restoring else "scaled"
+            parts.append(f"{r.n_undefined:,} left blank (no value in {units} units)")
+        if r.n_infinite:
+            parts.append(f"{_count(r.n_infinite, 'infinite value')} passed through")
+        lines.append(f"{name}: " + "; ".join(parts))
+        lines += [f"  note: {w}" for w in r.warnings if not any(c in w for c in _COUNTED)]
+    return lines
