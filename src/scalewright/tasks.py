@@ -266,6 +266,7 @@ def restore_file(
     target: str | os.PathLike,
     *,
     mapping: Mapping[str, str] | None = None,
+    exact: bool = False,
     sheet: str | None = None,
     progress: Progress | None = None,
     cancelled: CancelCheck | None = None,
@@ -274,11 +275,13 @@ def restore_file(
 
     Columns are matched to fitted columns by :func:`auto_mapping`; ``mapping`` adds or
     overrides pairs (file column -> fitted column, e.g. ``{"predicted_yield": "yield_kg"}``).
-    Columns not restored pass through untouched. The output is a plain table.
+    With ``exact``, only the pairs in ``mapping`` are restored (the window's mapping table,
+    where the user may set a name match to "leave as is"). Columns not restored pass
+    through untouched. The output is a plain table.
     """
     plan = _fitted(project)
     table = _read(data_path, sheet, _part(progress, 0.0, 0.5), cancelled)
-    pairs = auto_mapping(list(table.data.columns), project)
+    pairs = {} if exact else auto_mapping(list(table.data.columns), project)
     for column, fitted in (mapping or {}).items():
         if column not in table.data.columns:
             raise ColumnError(column, f"is not in {table.source.name}")

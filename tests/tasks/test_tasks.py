@@ -462,3 +462,21 @@ def test_repeated_and_blank_headers_survive_fit_apply_restore(tmp_path):
     restored = read_table(tmp_path / "r.csv")
     assert restored.headers == table.headers
     assert restored.data[second].tolist() == [10.0, 30.0, 20.0]
+
+
+def test_exact_mapping_restores_only_the_pairs_given(harvest, tmp_path):
+    # The window's mapping table may set a column matched by name to "leave as is".
+    choices = {"yield_kg": ColumnChoice("zscore"), "soil_ph": ColumnChoice("minmax")}
+    project = fit_project(harvest, choices)
+    scaled = tmp_path / "scaled.csv"
+    export_scaled(harvest, project, scaled)
+    out = tmp_path / "restored.csv"
+    (report,) = restore_file(project, scaled, out, mapping={"yield_kg": "yield_kg"}, exact=True)
+    assert report.column == "yield_kg"
+    restored, scaled_back = read_table(out).data, read_table(scaled).data
+    np.testing.assert_allclose(restored["yield_kg"], harvest.data["yield_kg"], rtol=1e-12)
+    # soil_ph matches a fitted column by name but was not asked for: it stays scaled.
+    np.testing.assert_array_equal(restored["soil_ph"], scaled_back["soil_ph"])
+    # Without exact, the name match is restored as well.
+    restore_file(project, scaled, out, mapping={"yield_kg": "yield_kg"})
+    np.testing.assert_allclose(read_table(out).data["soil_ph"], harvest.data["soil_ph"], rtol=1e-12)

@@ -564,17 +564,9 @@ class RestoreDialog(WritingDialog):
             return
         project, data_path = self._project, self.data_row.path()
         target, sheet, mapping = self.output_row.path(), self.data_row.sheet(), self.mapping()
-        # tasks.restore_file always restores the columns matched by name and adds the given
-        # pairs; when the user set a name match to "leave as is", restore exactly the pairs
-        # chosen here instead, through the same io, engine and writing calls.
-        dropped = any(c not in mapping for c in self._auto)
-
         def write(progress, cancelled):
-            if not dropped:
-                return tasks.restore_file(project, data_path, target, mapping=mapping,
-                                          sheet=sheet, progress=progress, cancelled=cancelled)
-            return restore_exactly(project, data_path, target, mapping, sheet=sheet,
-                                   progress=progress, cancelled=cancelled)
+            return tasks.restore_file(project, data_path, target, mapping=mapping, exact=True,
+                                      sheet=sheet, progress=progress, cancelled=cancelled)
 
         self.start_write(f"Writing {target.name}…", write, target)
 
@@ -590,27 +582,6 @@ class RestoreDialog(WritingDialog):
         self.show_result(text, OK_STYLE, details="\n".join(lines))
         self.close_button.setText("Done")
         self.close_button.setToolTip("Close this window; the file has been saved.")
-
-
-def restore_exactly(project, data_path, target, mapping, *, sheet=None, progress=None,
-                    cancelled=None) -> list[engine.ColumnReport]:
-    """Restore only the pairs in ``mapping`` (columns matched by name but not listed stay
-    as they are) and write ``target`` like ``tasks.restore_file`` does."""
-    half = (lambda f: progress(0.5 * f)) if progress is not None else None
-    rest = (lambda f: progress(0.5 + 0.5 * f)) if progress is not None else None
-    table = swio.read_table(data_path, swio.ReadOptions(sheet=sheet), progress=half,
-                            cancelled=cancelled)
-    for column in mapping:
-        if column not in table.data.columns:
-            raise ScalewrightError(f"column '{column}' is not in {table.source.name}")
-        if why := numeric_problem(table, column):
-            raise ScalewrightError(f"column '{column}' {why}, so it cannot be restored")
-    if project.source is not None:
-        swio.ensure_not_source(target, project.source)
-    data, reports = engine.restore(numbers_frame(table, mapping), project.plan, mapping)
-    tasks.write_output(target, data, table.headers, None, source=table.source,
-                       progress=rest, cancelled=cancelled)
-    return reports
 
 
 def _params_tip(fc) -> str:
