@@ -1,0 +1,46 @@
+"""Starting the window: ``main(path)`` is what ``scalewright`` and ``scalewright open FILE`` call."""
+
+from __future__ import annotations
+
+import sys
+from pathlib import Path
+
+ORGANIZATION = "Scalewright"
+APPLICATION = "Scalewright"
+
+
+def make_app(argv: list[str] | None = None):
+    """The QApplication (created once), with the calm theme and our names for QSettings."""
+    from PySide6.QtWidgets import QApplication
+
+    from . import theme
+
+    app = QApplication.instance()
+    if app is None:
+        app = QApplication(argv if argv is not None else [sys.argv[0]])
+    app.setOrganizationName(ORGANIZATION)
+    app.setApplicationName(APPLICATION)
+    app.setApplicationDisplayName(APPLICATION)
+    theme.apply_theme(app)
+    theme.configure_plots()
+    return app
+
+
+def main(path: str | None = None) -> int:
+    """Open the window (on a data file or a .swproj if given) and run until it is closed."""
+    app = make_app()
+    from .main_window import MainWindow
+
+    window = MainWindow()
+    window.show()
+    if path:
+        target = Path(path)
+        if not target.exists():
+            window.show_message(f"{target}: there is no such file")
+        else:
+            window.open_path(target)
+    return int(app.exec())
+
+
+if __name__ == "__main__":  # python -m scalewright.gui.app [FILE]
+    raise SystemExit(main(sys.argv[1] if len(sys.argv) > 1 else None))

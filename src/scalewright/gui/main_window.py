@@ -1,0 +1,935 @@
+"""The main window: column list, method panel, linked histograms and the data preview.
+
+Menus, toolbar and shortcuts reach every file operation; long work runs in the job strip
+of the status bar. Everything the window does to data goes through ``io``, ``tasks`` and
+``project`` — the same calls the command line makes.
+
+Entry points for the dialogs (kept as methods so that tests and other modules can call
+them): ``open_import_dialog(path)``, ``open_apply_dialog()``, ``open_restore_dialog()``.
+Questions to the user go through ``ask_open_path``, ``ask_save_path`` and
+``ask_unsaved_changes``, which tests replace.
+"""
+
+from __future__ import annotations
+
+from pathlib import Path
+from typing import Any
+
+from PySide6.QtCore import QByteArray, QSettings, Qt, QTimer, Signal
+from PySide6.QtGui import QAction, QCloseEvent, QIcon, QKeySequence, QUndoStack
+from PySide6.QtWidgets import (
+    QDockWidget,
+    QFileDialog,
+    QLabel,
+    QMainWindow,
+    QMessageBox,
+    QSplitter,
+    QStyle,
+    QUndoView,
+    QVBoxLayout,
+    QWidget,
+)
+
+from .. import __version__
+from ..engine import METHODS
+from ..errors import ScalewrightError
+from . import commands, theme
+from .column_list import ColumnList
+from .errors import show_error
+from .histograms import HistogramPanel
+from .jobs import JobRunner
+from .method_panel import MethodPanel
+from .preview import PreviewPanel
+from .state import Session
+
+PROJECT_SUFFIX = ".swproj"
+READ_SUFFIXES = (".csv", ".tsv", ".txt", ".xlsx", ".xlsm", ".xls", ".ods")
+DATA_FILTER = "Data files (*.csv *.tsv *.txt *.xlsx *.xlsm *.xls *.ods);;All files (*)"
+PROJECT_FILTER = "Scalewright projects (*.swproj)"
+OPEN_ANY_FILTER = "Data or project files (*.csv *.tsv *.txt *.xlsx *.xlsm *.xls *.ods *.swproj)"
+EXPORT_FILTER = (
+    "Excel workbook with parameters (*.xlsx);;Comma-separated text (*.csv);;"
+    "Tab-separated text (*.tsv)"
+)
+MAX_RECENT = 8
+
+
+class MainWindow(QMainWindow):
+    """The Scalewright window over one ``Session``."""
+
+    file_written = Signal(object)  # Path of a project or data file the window wrote
+
+    def __init__(
+        self,
+        session: Session | None = None,
+        settings: QSettings | None = None,
+        parent: QWidget | None = None,
+    ) -> None:
+        super().__init__(parent)
+        self.session = session or Session()
+        self.settings = settings or QSettings()
+        self.stack = QUndoStack(self)
+        self.last_message: QMessageBox | None = None
+        self.import_dialog = None
+        self.apply_dialog = None
+        self.restore_dialog = None
+        self.setAcceptDrops(True)
+        self.setWindowIcon(app_icon())
+        self.resize(1360, 860)
+
+        self.columns = ColumnList(self.session)
+        self.method_panel = MethodPanel(self.session, self.stack)
+        self.histograms = HistogramPanel(self.session)
+        self.preview = PreviewPanel(self.session)
+
+        left = QWidget()
+        lay = QVBoxLayout(left)
+        lay.setContentsMargins(theme.MARGIN, theme.MARGIN, 0, theme.MARGIN)
+        title = QLabel("Columns")
+        title.setProperty("role", "heading")
+        lay.addWidget(title)
+        lay.addWidget(self.columns, 1)
+        self.columns_hint = QLabel(
+            "Click a column to choose how to scale it; Ctrl+click or Shift+click to choose "
+            "several at once. Greyed columns cannot be scaled: hover them to see why."
+        )
+        self.columns_hint.setWordWrap(True)
+        self.columns_hint.setProperty("role", "hint")
+        lay.addWidget(self.columns_hint)
+        self.centre = QSplitter(Qt.Orientation.Vertical)
+        self.centre.addWidget(self.histograms)
+        self.centre.addWidget(self.preview)
+        self.centre.setStretchFactor(0, 3)
+        self.centre.setStretchFactor(1, 2)
+        self.centre.setSizes([560, 260])
+        self.centre.setChildrenCollapsible(False)
+        self.main_split = QSplitter(Qt.Orientation.Horizontal)
+        self.main_split.addWidget(left)
+        self.main_split.addWidget(self.centre)
+        self.main_split.addWidget(self.method_panel)
+        self.main_split.setStretchFactor(0, 0)
+        self.main_split.setStretchFactor(1, 1)
+        self.main_split.setStretchFactor(2, 0)
+        self.main_split.setSizes([400, 680, 340])
+        self.main_split.setChildrenCollapsible(False)
+        self.setCentralWidget(self.main_split)
+
+        self.history = QDockWidget("Changes", self)
+        self.history.setObjectName("history")
+        view = QUndoView(self.stack)
+        view.setEmptyLabel("(as opened)")
+        view.setToolTip("Every change to a choice; click a line to go back to it")
+        self.history.setWidget(view)
+        self.addDockWidget(Qt.DockWidgetArea.RightDockWidgetArea, self.history)
+        self.history.hide()
+
+        self.jobs = JobRunner(self)
+        self.statusBar().addPermanentWidget(self.jobs)
+        self.jobs.busy_changed.connect(self._on_busy)
+
+        self._make_actions()
+        self._make_menus()
+        self._make_toolbar()
+
+        self.session.dirty_changed.connect(self._update_title)
+        self.session.project_path_changed.connect(lambda _p: self._update_title())
+        self.session.table_loaded.connect(self._on_table)
+        self.stack.cleanChanged.connect(self._on_clean)
+        self._update_title()
+        self._on_table()
+        self._restore_geometry()
+
+    # ================================================================== building
+
+    def _action(self, text, slot, shortcut=None, tip="", icon=None) -> QAction:
+        a = QAction(text, self)
+        if shortcut is not None:
+            a.setShortcut(QKeySequence(shortcut))
+        a.setToolTip(tip or text.replace("…", ""))
+        a.setStatusTip(tip or text.replace("…", ""))
+        if icon is not None:
+            a.setIcon(self.style().standardIcon(icon))
+        a.triggered.connect(lambda _checked=False: slot())
+        return a
+
+    def _make_actions(self) -> None:
+        sp = QStyle.StandardPixmap
+        self.act_open = self._action(
+            "Open data…",
+            self.choose_and_open_data,
+            QKeySequence.StandardKey.Open,
+            "Open a CSV or spreadsheet file",
+            sp.SP_DialogOpenButton,
+        )
+        self.act_open_project = self._action(
+            "Open project…",
+            self.choose_and_open_project,
+            "Ctrl+Shift+O",
+            "Open a saved Scalewright project and its data",
+            sp.SP_DirOpenIcon,
+        )
+        self.act_save = self._action(
+            "Save project",
+            self.save,
+            QKeySequence.StandardKey.Save,
+            "Save the choices and fitted values as a project file",
+            sp.SP_DialogSaveButton,
+        )
+        self.act_save_as = self._action(
+            "Save project as…",
+            self.save_as,
+            "Ctrl+Shift+S",
+            "Save the project under a new name",
+        )
+        self.act_export = self._action(
+            "Export scaled data…",
+            self.choose_and_export,
+            "Ctrl+E",
+            "Write the scaled table as a workbook (with a parameters sheet) or as CSV",
+            sp.SP_FileIcon,
+        )
+        self.act_apply = self._action(
+            "Apply to another file…",
+            self.open_apply_dialog,
+            "Ctrl+Shift+A",
+            "Scale another file (for example next season's) with these same fitted values",
+            sp.SP_FileDialogDetailedView,
+        )
+        self.act_restore = self._action(
+            "Restore original units…",
+            self.open_restore_dialog,
+            "Ctrl+Shift+R",
+            "Turn scaled values (for example a model's predictions) back into original units",
+            sp.SP_BrowserReload,
+        )
+        self.act_quit = self._action("Quit", self.close, QKeySequence.StandardKey.Quit)
+        self.act_undo = self.stack.createUndoAction(self, "Undo")
+        self.act_undo.setShortcut(QKeySequence.StandardKey.Undo)
+        self.act_undo.setIcon(self.style().standardIcon(sp.SP_ArrowBack))
+        self.act_undo.setToolTip("Undo the last change to a choice")
+        self.act_redo = self.stack.createRedoAction(self, "Redo")
+        self.act_redo.setShortcut(QKeySequence.StandardKey.Redo)
+        self.act_redo.setIcon(self.style().standardIcon(sp.SP_ArrowForward))
+        self.act_redo.setToolTip("Redo the change you undid")
+        self.act_suggest = self._action(
+            "Suggest for selected columns",
+            self.method_panel.suggest,
+            "Ctrl+G",
+            "Choose a method for the selected columns from the shape of their values",
+        )
+        self.act_leave = self._action(
+            "Leave selected columns as they are",
+            self.leave_selected,
+            "Ctrl+0",
+            "Set the selected columns back to 'leave as is'",
+        )
+        self.act_select_all = self._action(
+            "Select all number columns",
+            self.select_all_numbers,
+            "Ctrl+Shift+L",
+            "Select every column that can be scaled",
+        )
+        self.act_scaled_preview = self._action(
+            "Show scaled values in the data",
+            lambda: None,
+            "Ctrl+T",
+            "Switch the data table between original and scaled values",
+        )
+        self.act_scaled_preview.setCheckable(True)
+        self.act_scaled_preview.toggled.connect(self.preview.set_show_scaled)
+        self.preview.mode.currentIndexChanged.connect(
+            lambda i: self._set_checked(self.act_scaled_preview, i == 1)
+        )
+        self.act_range = self._action(
+            "Select a range on the histograms",
+            lambda: None,
+            "Ctrl+R",
+            "Show a range you can drag on either histogram",
+        )
+        self.act_range.setCheckable(True)
+        self.act_range.toggled.connect(self.histograms.show_range)
+        self.histograms.range_button.toggled.connect(
+            lambda on: self._set_checked(self.act_range, on)
+        )
+        self.act_history = self.history.toggleViewAction()
+        self.act_history.setText("List of changes")
+        self.act_history.setToolTip("Show every change made, to go back to any of them")
+        self.act_help = self._action(
+            "About the methods",
+            self.show_methods_help,
+            QKeySequence.StandardKey.HelpContents,
+            "What each scaling method does and when to use it",
+        )
+        self.act_about = self._action("About Scalewright", self.show_about)
+
+    @staticmethod
+    def _set_checked(action: QAction, on: bool) -> None:
+        if action.isChecked() != on:
+            action.blockSignals(True)
+            action.setChecked(on)
+            action.blockSignals(False)
+
+    def _make_menus(self) -> None:
+        mb = self.menuBar()
+        m = mb.addMenu("&File")
+        m.addActions([self.act_open, self.act_open_project])
+        self.recent_menu = m.addMenu("Open recent")
+        self.recent_menu.setToolTipsVisible(True)
+        self.recent_menu.aboutToShow.connect(self._fill_recent)
+        m.addSeparator()
+        m.addActions([self.act_save, self.act_save_as])
+        m.addSeparator()
+        m.addActions([self.act_export, self.act_apply, self.act_restore])
+        m.addSeparator()
+        m.addAction(self.act_quit)
+        m = mb.addMenu("&Edit")
+        m.addActions([self.act_undo, self.act_redo])
+        m.addSeparator()
+        m.addActions([self.act_suggest, self.act_leave, self.act_select_all])
+        m = mb.addMenu("&View")
+        m.addActions([self.act_scaled_preview, self.act_range, self.act_history])
+        m = mb.addMenu("&Help")
+        m.addActions([self.act_help, self.act_about])
+        self._fill_recent()
+
+    def _make_toolbar(self) -> None:
+        tb = self.addToolBar("Main")
+        tb.setObjectName("main_toolbar")
+        tb.setMovable(False)
+        tb.setToolButtonStyle(Qt.ToolButtonStyle.ToolButtonTextBesideIcon)
+        tb.addActions([self.act_open, self.act_open_project, self.act_save])
+        tb.addSeparator()
+        # Toolbar buttons keep short names; the menu's Undo/Redo say what they would undo.
+        sp = QStyle.StandardPixmap
+        self.tb_undo = self._action(
+            "Undo", self.stack.undo, None, "Undo the last change to a choice", sp.SP_ArrowBack
+        )
+        self.tb_redo = self._action(
+            "Redo", self.stack.redo, None, "Redo the change you undid", sp.SP_ArrowForward
+        )
+        self.tb_undo.setEnabled(False)
+        self.tb_redo.setEnabled(False)
+        self.stack.canUndoChanged.connect(self.tb_undo.setEnabled)
+        self.stack.canRedoChanged.connect(self.tb_redo.setEnabled)
+        self.stack.undoTextChanged.connect(
+            lambda t: self.tb_undo.setToolTip(f"Undo: {t}" if t else "Undo the last change")
+        )
+        self.stack.redoTextChanged.connect(
+            lambda t: self.tb_redo.setToolTip(f"Redo: {t}" if t else "Redo the change you undid")
+        )
+        tb.addActions([self.tb_undo, self.tb_redo])
+        tb.addSeparator()
+        tb.addActions([self.act_export, self.act_apply, self.act_restore])
+
+    # ================================================================== state display
+
+    def _update_title(self, *_args) -> None:
+        s = self.session
+        if s.project_path is not None:
+            name = s.project_path.name
+        elif s.table is not None:
+            name = Path(s.table.source).name
+        else:
+            name = "no data open"
+        self.setWindowTitle(f"{name}[*] — Scalewright")
+        self.setWindowModified(s.dirty)
+
+    def _on_clean(self, clean: bool) -> None:
+        if clean:
+            self.session.set_dirty(False)
+
+    def _on_table(self) -> None:
+        has = self.session.table is not None
+        for a in (
+            self.act_save,
+            self.act_save_as,
+            self.act_export,
+            self.act_suggest,
+            self.act_leave,
+            self.act_select_all,
+        ):
+            a.setEnabled(has and not self.jobs.busy)
+        self._update_title()
+
+    def _on_busy(self, busy: bool) -> None:
+        for a in (
+            self.act_open,
+            self.act_open_project,
+            self.act_apply,
+            self.act_restore,
+            self.recent_menu.menuAction(),
+        ):
+            a.setEnabled(not busy)
+        self._on_table()
+
+    def show_message(self, err: BaseException | str, details: str | None = None) -> QMessageBox:
+        """A short plain message (details on demand); the window keeps everything as it was."""
+        self.last_message = show_error(self, err, details=details)
+        return self.last_message
+
+    def notify(self, text: str, msecs: int = 8000) -> None:
+        self.statusBar().showMessage(text, msecs)
+
+    # ================================================================== questions (replaced in tests)
+
+    def ask_open_path(self, title: str, filter_: str) -> str | None:
+        path, _ = QFileDialog.getOpenFileName(self, title, self._last_dir(), filter_)
+        return path or None
+
+    def ask_save_path(self, title: str, filter_: str, suggested: str = "") -> str | None:
+        start = str(Path(self._last_dir()) / suggested) if suggested else self._last_dir()
+        path, _ = QFileDialog.getSaveFileName(self, title, start, filter_)
+        return path or None
+
+    def ask_unsaved_changes(self) -> str:
+        """'save', 'discard' or 'cancel'."""
+        box = QMessageBox(self)
+        box.setIcon(QMessageBox.Icon.Question)
+        box.setWindowTitle("Unsaved changes")
+        box.setText("Your choices have changed since the project was last saved.")
+        box.setInformativeText("Save them before going on?")
+        box.setStandardButtons(
+            QMessageBox.StandardButton.Save
+            | QMessageBox.StandardButton.Discard
+            | QMessageBox.StandardButton.Cancel
+        )
+        box.setDefaultButton(QMessageBox.StandardButton.Save)
+        answer = box.exec()
+        return {
+            QMessageBox.StandardButton.Save: "save",
+            QMessageBox.StandardButton.Discard: "discard",
+        }.get(QMessageBox.StandardButton(answer), "cancel")
+
+    def _last_dir(self) -> str:
+        return str(self.settings.value("last_dir", str(Path.home())))
+
+    def _remember_dir(self, path: str | Path) -> None:
+        self.settings.setValue("last_dir", str(Path(path).parent))
+
+    def _may_discard(self) -> bool:
+        """True when there are no unsaved changes, or the user saved or dropped them."""
+        if not self.session.dirty:
+            return True
+        answer = self.ask_unsaved_changes()
+        if answer == "save":
+            return self.save(wait=True)
+        return answer == "discard"
+
+    # ================================================================== opening
+
+    def open_path(self, path: str | Path) -> None:
+        """Open a data file (through the import dialog) or a project, by its extension."""
+        path = Path(path)
+        if path.suffix.lower() == PROJECT_SUFFIX:
+            self.open_project(path)
+        else:
+            self.open_import_dialog(path)
+
+    def choose_and_open_data(self) -> None:
+        if not self._may_discard():
+            return
+        path = self.ask_open_path("Open data", DATA_FILTER)
+        if path:
+            self.open_import_dialog(path, asked=True)
+
+    def open_import_dialog(self, path: str | Path, *, asked: bool = False):
+        """Show how the file will be read, and load it once the user agrees."""
+        if not asked and not self._may_discard():
+            return None
+        try:
+            from .import_dialog import ImportDialog
+        except ImportError:  # the dialog is optional: read with what was detected
+            self.load_data(path)
+            return None
+        try:
+            dialog = ImportDialog(path, self)
+        except Exception as err:  # any failure to build it is shown plainly
+            self.show_message(err)
+            return None
+        dialog.accepted.connect(lambda: self.load_data(path, dialog.options()))
+        dialog.setModal(True)
+        dialog.open()
+        self.import_dialog = dialog
+        return dialog
+
+    def load_data(self, path: str | Path, options: Any = None, *, then=None):
+        """Read the file in the background and show it; on error nothing changes."""
+        from .. import io as swio
+
+        path = Path(path)
+
+        def work(progress, cancelled):
+            return swio.read_table(path, options, progress=progress, cancelled=cancelled)
+
+        def done(table) -> None:
+            self.session.load_table(table)
+            self.stack.clear()
+            self.stack.setClean()
+            self.add_recent(path)
+            self._remember_dir(path)
+            notes = list(getattr(table, "notes", []) or [])
+            self.notify(
+                f"Opened {path.name}: {len(table.data):,} rows" + (f". {notes[0]}" if notes else "")
+            )
+            if then is not None:
+                then(table)
+
+        return self.jobs.run(
+            f"Reading {path.name}",
+            work,
+            done,
+            self.show_message,
+            lambda: self.notify(f"Stopped reading {path.name}; nothing changed"),
+        )
+
+    def choose_and_open_project(self) -> None:
+        if not self._may_discard():
+            return
+        path = self.ask_open_path("Open project", PROJECT_FILTER)
+        if path:
+            self.open_project(path, asked=True)
+
+    def choose_source_for_project(self, message: str) -> str | None:
+        """Ask where the project's data file is now (it was not found)."""
+        box = QMessageBox(self)
+        box.setIcon(QMessageBox.Icon.Information)
+        box.setText(f"The project's data file was not found: {message}.")
+        box.setInformativeText("Show where it is now?")
+        box.setStandardButtons(QMessageBox.StandardButton.Open | QMessageBox.StandardButton.Cancel)
+        if box.exec() != QMessageBox.StandardButton.Open:
+            return None
+        return self.ask_open_path("Where is the data file?", DATA_FILTER)
+
+    def open_project(self, path: str | Path, *, asked: bool = False):
+        """Load a project and its data file; the choices are fitted again on that data."""
+        from ..project import load_project, locate_source
+
+        if not asked and not self._may_discard():
+            return None
+        path = Path(path)
+        try:
+            project = load_project(path)
+            check = locate_source(project, path)
+        except ScalewrightError as err:
+            self.show_message(err)
+            return None
+        source = check.path
+        if source is None:
+            chosen = self.choose_source_for_project(check.message)
+            if not chosen:
+                self.notify("The project was not opened: its data file was not found")
+                return None
+            source = Path(chosen)
+
+        def shown(table) -> None:
+            missing = [c for c in project.choices if c not in table.data.columns]
+            try:
+                self.session.load_table(
+                    table,
+                    choices=project.choices,
+                    settings=project.settings,
+                    project_path=path,
+                )
+            except ScalewrightError as err:
+                self.show_message(err)
+                return
+            self.add_recent(path)
+            notes = []
+            if check.changed:
+                notes.append(
+                    "the data file has changed since the project was saved, "
+                    "so the values were fitted again on the current data"
+                )
+            if missing:
+                notes.append("not in the data any more: " + ", ".join(missing))
+            if source != check.path:
+                self.session.set_dirty(True)  # the data file moved: the project should be saved
+            if notes:
+                self.show_message("Opened the project; " + "; ".join(notes) + ".")
+            self.notify(f"Opened project {path.name} with {source.name}")
+
+        return self.load_data(source, project.read_options, then=shown)
+
+    # ================================================================== saving and exporting
+
+    def _project_job(self):
+        """A function fitting the current choices into a Project (run off the interface thread)."""
+        from .. import tasks
+
+        table = self.session.table
+        choices = self.session.chosen()
+        settings = self.session.settings
+        return lambda: tasks.fit_project(table, choices, settings)
+
+    def save(self, *, wait: bool = False) -> bool:
+        if self.session.project_path is None:
+            return self.save_as(wait=wait)
+        return self.save_project(self.session.project_path, wait=wait)
+
+    def save_as(self, *, wait: bool = False) -> bool:
+        if self.session.table is None:
+            return False
+        suggested = Path(self.session.table.source).with_suffix(PROJECT_SUFFIX).name
+        path = self.ask_save_path("Save project", PROJECT_FILTER, suggested)
+        if not path:
+            return False
+        path = Path(path)
+        if path.suffix.lower() != PROJECT_SUFFIX:
+            path = path.with_name(path.name + PROJECT_SUFFIX)
+        return self.save_project(path, wait=wait)
+
+    def save_project(self, path: str | Path, *, wait: bool = False) -> bool:
+        """Fit the choices and write the project file (in the background)."""
+        from ..project import save_project
+
+        if self.session.table is None:
+            return False
+        problems = self.session.problems()
+        if problems:
+            label, reason = next(iter(problems.items()))
+            self.show_message(f"The project was not saved: {reason}")
+            return False
+        path = Path(path)
+        make = self._project_job()
+        clean_index = self.stack.index()
+        result = {"ok": False}
+
+        def work(progress, cancelled):
+            project = make()
+            if cancelled():
+                from ..errors import Cancelled
+
+                raise Cancelled()
+            save_project(project, path)
+            return project
+
+        def done(project) -> None:
+            result["ok"] = True
+            self.session.set_project_path(path)
+            if self.stack.index() == clean_index:
+                self.stack.setClean()
+                self.session.set_dirty(False)
+            self.add_recent(path)
+            self._remember_dir(path)
+            self.notify(f"Saved {path.name}")
+            self.file_written.emit(path)
+
+        job = self.jobs.run(f"Saving {path.name}", work, done, self.show_message)
+        if wait:
+            self._wait_for(job)
+            return result["ok"]
+        return True
+
+    def _wait_for(self, job) -> None:
+        from PySide6.QtCore import QEventLoop
+
+        loop = QEventLoop()
+        job.ended.connect(loop.quit)
+        if not job.done:
+            loop.exec()
+
+    def choose_and_export(self) -> None:
+        if self.session.table is None:
+            return
+        suggested = Path(self.session.table.source).stem + "_scaled.xlsx"
+        path = self.ask_save_path("Export scaled data", EXPORT_FILTER, suggested)
+        if path:
+            self.export(path)
+
+    def export(self, target: str | Path, *, clip: bool = False):
+        """Write the scaled table (workbook with parameters, or CSV/TSV) in the background."""
+        from .. import tasks
+
+        if self.session.table is None:
+            return None
+        problems = self.session.problems()
+        if problems:
+            self.show_message(f"Nothing was exported: {next(iter(problems.values()))}")
+            return None
+        target = Path(target)
+        if not target.suffix:
+            target = target.with_suffix(".xlsx")
+        table = self.session.table
+        make = self._project_job()
+
+        def work(progress, cancelled):
+            project = make()
+            return tasks.export_scaled(
+                table, project, target, clip=clip, progress=progress, cancelled=cancelled
+            )
+
+        def done(reports) -> None:
+            self._remember_dir(target)
+            self.notify(f"Exported {target.name}")
+            self.file_written.emit(target)
+
+        return self.jobs.run(
+            f"Exporting {target.name}",
+            work,
+            done,
+            self.show_message,
+            lambda: self.notify("Export stopped; no file was written"),
+        )
+
+    # ================================================================== apply and restore
+
+    def current_project(self, then) -> None:
+        """Call ``then(project)`` with the project for the current choices (fitted in the
+        background), or with one the user picks when no data is open."""
+        from .. import tasks
+
+        if self.session.table is not None and self.session.chosen():
+            problems = self.session.problems()
+            if problems:
+                self.show_message(next(iter(problems.values())))
+                return
+            make = self._project_job()
+            self.jobs.run("Fitting", lambda p, c: make(), then, self.show_message)
+            return
+        path = self.ask_open_path(
+            "Which project?", "Projects or scaled workbooks (*.swproj *.xlsx)"
+        )
+        if not path:
+            return
+        try:
+            project = tasks.load_project_or_workbook(path)
+        except ScalewrightError as err:
+            self.show_message(err)
+            return
+        then(project)
+
+    def open_apply_dialog(self) -> None:
+        """Scale another file with the current fitted values (a dialog shows what happens)."""
+        self.current_project(self._show_apply)
+
+    def _show_apply(self, project) -> None:
+        try:
+            from .apply_dialog import ApplyDialog
+        except ImportError:
+            self._apply_without_dialog(project)
+            return
+        dialog = ApplyDialog(project, self)
+        dialog.fileWritten.connect(lambda path, _reports: self.file_written.emit(Path(path)))
+        dialog.setModal(True)
+        dialog.open()
+        self.apply_dialog = dialog
+
+    def _apply_without_dialog(self, project) -> None:
+        from .. import tasks
+
+        data = self.ask_open_path("Apply to which file?", DATA_FILTER)
+        if not data:
+            return
+        target = self.ask_save_path(
+            "Save the scaled file as", EXPORT_FILTER, Path(data).stem + "_scaled.xlsx"
+        )
+        if not target:
+            return
+        self.jobs.run(
+            f"Scaling {Path(data).name}",
+            lambda p, c: tasks.apply_to_file(project, data, target, progress=p, cancelled=c),
+            lambda reports: self._report_written(target, tasks.describe_reports(reports)),
+            self.show_message,
+        )
+
+    def open_restore_dialog(self) -> None:
+        """Turn scaled values back into original units (a dialog maps the columns).
+
+        With choices in the window, their fitted values are used; otherwise the dialog
+        lets the user pick a project or a scaled workbook.
+        """
+        if self.session.table is not None and self.session.chosen():
+            self.current_project(self._show_restore)
+        else:
+            self._show_restore(None)
+
+    def _show_restore(self, project) -> None:
+        try:
+            from .restore_dialog import RestoreDialog
+        except ImportError:
+            self._restore_without_dialog(project)
+            return
+        dialog = RestoreDialog(project, self)
+        if hasattr(dialog, "fileWritten"):
+            dialog.fileWritten.connect(lambda path, _reports: self.file_written.emit(Path(path)))
+        dialog.setModal(True)
+        dialog.open()
+        self.restore_dialog = dialog
+
+    def _restore_without_dialog(self, project) -> None:
+        from .. import tasks
+
+        if project is None:
+            path = self.ask_open_path(
+                "Which project?", "Projects or scaled workbooks (*.swproj *.xlsx)"
+            )
+            if not path:
+                return
+            try:
+                project = tasks.load_project_or_workbook(path)
+            except ScalewrightError as err:
+                self.show_message(err)
+                return
+
+        data = self.ask_open_path("Restore which file?", DATA_FILTER)
+        if not data:
+            return
+        target = self.ask_save_path(
+            "Save the restored file as", EXPORT_FILTER, Path(data).stem + "_original_units.csv"
+        )
+        if not target:
+            return
+        self.jobs.run(
+            f"Restoring {Path(data).name}",
+            lambda p, c: tasks.restore_file(project, data, target, progress=p, cancelled=c),
+            lambda reports: self._report_written(
+                target, tasks.describe_reports(reports, restoring=True)
+            ),
+            self.show_message,
+        )
+
+    def _report_written(self, target, lines: list[str]) -> None:
+        self.file_written.emit(Path(target))
+        self.show_message(f"Wrote {Path(target).name}.", details="\n".join(lines))
+
+    # ================================================================== edit helpers
+
+    def leave_selected(self) -> None:
+        commands.set_method(self.stack, self.session, self.session.selection, "none")
+
+    def select_all_numbers(self) -> None:
+        self.columns.select_labels(
+            [lab for lab in self.session.labels if self.session.scalable(lab)]
+        )
+
+    # ================================================================== recent files
+
+    def recent_files(self) -> list[str]:
+        value = self.settings.value("recent_files", [])
+        if isinstance(value, str):
+            value = [value]
+        return [str(v) for v in (value or [])]
+
+    def add_recent(self, path: str | Path) -> None:
+        path = str(Path(path).absolute())
+        files = [p for p in self.recent_files() if p != path]
+        files.insert(0, path)
+        self.settings.setValue("recent_files", files[:MAX_RECENT])
+
+    def _fill_recent(self) -> None:
+        self.recent_menu.clear()
+        files = self.recent_files()
+        for path in files:
+            a = self.recent_menu.addAction(Path(path).name)
+            a.setToolTip(path)
+            a.triggered.connect(lambda _c=False, p=path: self._open_recent(p))
+        if not files:
+            a = self.recent_menu.addAction("(no recent files)")
+            a.setEnabled(False)
+
+    def _open_recent(self, path: str) -> None:
+        if not Path(path).exists():
+            self.settings.setValue("recent_files", [p for p in self.recent_files() if p != path])
+            self.show_message(f"{path} is no longer there.")
+            return
+        self.open_path(path)
+
+    # ================================================================== drag and drop
+
+    @staticmethod
+    def _dropped_path(event) -> Path | None:
+        md = event.mimeData()
+        if not md.hasUrls():
+            return None
+        for url in md.urls():
+            if url.isLocalFile():
+                p = Path(url.toLocalFile())
+                if p.suffix.lower() in READ_SUFFIXES + (PROJECT_SUFFIX,):
+                    return p
+        return None
+
+    def dragEnterEvent(self, event) -> None:
+        if self._dropped_path(event) is not None and not self.jobs.busy:
+            event.acceptProposedAction()
+        else:
+            event.ignore()
+
+    def dropEvent(self, event) -> None:
+        path = self._dropped_path(event)
+        if path is not None:
+            event.acceptProposedAction()
+            QTimer.singleShot(0, lambda: self.open_path(path))
+
+    # ================================================================== help
+
+    def show_methods_help(self) -> None:
+        rows = "".join(
+            f"<p><b>{m.name}</b>: {m.summary}<br><i>When to use:</i> {m.when_to_use}</p>"
+            for m in METHODS.values()
+        )
+        box = QMessageBox(self)
+        box.setWindowTitle("About the methods")
+        box.setTextFormat(Qt.TextFormat.RichText)
+        box.setText(rows)
+        box.open()
+        self.last_message = box
+
+    def show_about(self) -> None:
+        box = QMessageBox(self)
+        box.setWindowTitle("About Scalewright")
+        box.setText(
+            f"<b>Scalewright {__version__}</b><br>Scale the number columns of a table, keep "
+            "every fitted value in a project, and turn scaled values back into original units."
+        )
+        box.open()
+        self.last_message = box
+
+    # ================================================================== geometry and closing
+
+    def _restore_geometry(self) -> None:
+        geometry = self.settings.value("window/geometry")
+        if isinstance(geometry, QByteArray) and not geometry.isEmpty():
+            self.restoreGeometry(geometry)
+        state = self.settings.value("window/state")
+        if isinstance(state, QByteArray) and not state.isEmpty():
+            self.restoreState(state)
+        split = self.settings.value("window/splitter")
+        if isinstance(split, QByteArray) and not split.isEmpty():
+            self.main_split.restoreState(split)
+
+    def save_geometry(self) -> None:
+        self.settings.setValue("window/geometry", self.saveGeometry())
+        self.settings.setValue("window/state", self.saveState())
+        self.settings.setValue("window/splitter", self.main_split.saveState())
+        self.settings.sync()
+
+    def closeEvent(self, event: QCloseEvent) -> None:
+        if not self._may_discard():
+            event.ignore()
+            return
+        if self.jobs.busy:
+            self.jobs.cancel()
+            self.jobs.wait()
+        self.save_geometry()
+        event.accept()
+
+
+def app_icon() -> QIcon:
+    """A small drawn icon: two bars, blue and orange (the original and scaled colours)."""
+    from PySide6.QtGui import QColor, QPainter, QPixmap
+
+    pm = QPixmap(64, 64)
+    pm.fill(Qt.GlobalColor.transparent)
+    p = QPainter(pm)
+    p.setRenderHint(QPainter.RenderHint.Antialiasing)
+    p.setPen(Qt.PenStyle.NoPen)
+    p.setBrush(QColor("#ffffff"))
+    p.drawRoundedRect(2, 2, 60, 60, 12, 12)
+    p.setBrush(QColor(theme.ORIGINAL))
+    for i, h in enumerate((18, 34, 44, 26)):
+        p.drawRect(8 + i * 7, 56 - h, 6, h)
+    p.setBrush(QColor(theme.SCALED))
+    for i, h in enumerate((22, 40, 30, 14)):
+        p.drawRect(36 + i * 5, 56 - h, 4, h)
+    p.end()
+    return QIcon(pm)

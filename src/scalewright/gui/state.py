@@ -1,0 +1,603 @@
+"""The session: everything the window shows, kept apart from the widgets.
+
+One ``Session`` holds the loaded table, the choice for every column, the fit settings,
+what has been fitted, the current selection, the project path and whether there are
+unsaved changes. It announces every change with psygnal signals, so that it can be built,
+changed and checked in tests without a single widget.
+
+Caching rules (so that the window stays quick at a million rows):
+
+- a column's values (float64), its histogram (counts on original bins), its summary
+  (``describe``) and suggestion (``suggest``) and a sorted copy of its finite values are
+  computed once per loaded table;
+- a fitted column is kept per (column, choice) for the current fit settings, so switching
+  back to an earlier method, or undoing, costs nothing; a change of fit settings clears it;
+- the scaled histogram is the same counts on ``mapped_edges``: switching a method maps
+  31 edges and never re-bins the values.
+"""
+
+from __future__ import annotations
+
+from collections.abc import Iterable, Mapping
+from dataclasses import dataclass
+from pathlib import Path
+from typing import Any
+
+import numpy as np
+import pandas as pd
+from psygnal import Signal
+
+from ..engine import (
+    ColumnChoice,
+    ColumnSummary,
+    FitSettings,
+    FittedColumn,
+    FittedPlan,
+    Histogram,
+    Suggestion,
+    bars_in_range,
+    column_values,
+    describe,
+    fit_column,
+    fit_rows,
+    get_method,
+    histogram,
+    mapped_edges,
+    numerics,
+    suggest,
+    value_key,
+)
+from ..errors import ScalewrightError
+
+BINS = 30
+
+# Methods whose forward map is a straight line a*x + b: their scaled summary figures follow
+# exactly from the original ones, without touching the values.
+AFFINE_METHODS = frozenset({"none", "minmax", "zscore", "decimal", "robust", "maxabs"})
+
+# Kinds that can be scaled; everything else is listed but greyed out.
+_WHY_NOT = {
+    "identifier": "an identifier (a code such as a tree number): codes are kept exactly as they are",
+    "date": "dates are kept as they are and are not scaled",
+    "boolean": "yes/no values are kept as they are and are not scaled",
+    "text": "text, not numbers, so it cannot be scaled",
+    "empty": "every cell is blank, so there is nothing to scale",
+}
+
+
+@dataclass(frozen=True)
+class Figures:
+    """The summary figures shown under a histogram."""
+
+    n: int
+    missing: int
+    mean: float
+    sd: float
+    min: float
+    max: float
+    skewness: float
+
+
+@dataclass(frozen=True)
+class RangeInfo:
+    """A range on one histogram, in both units, with how many values fall in it."""
+
+    low: float  # original units
+    high: float
+    scaled_low: float
+    scaled_high: float
+    count: int
+    first_bar: int
+    last_bar: int
+
+
+def figures_of(values: np.ndarray) -> Figures:
+    """The summary figures of an array, as ``describe`` computes them but without quartiles."""
+    x = np.asarray(values, dtype=np.float64)
+    finite = x[np.isfinite(x)]
+    missing = int(np.count_nonzero(np.isnan(x)))
+    if finite.size == 0:
+        nan = float("nan")
+        return Figures(0, missing, nan, nan, nan, nan, nan)
+    m = numerics.mean(finite)
+    return Figures(
+        int(finite.size),
+        missing,
+        m,
+        numerics.sd(finite, ddof=1, center=m),
+        float(np.min(finite)),
+        float(np.max(finite)),
+        numerics.skewness(finite),
+    )
+
+
+def _choice_key(choice: ColumnChoice) -> tuple:
+    return (choice.method, tuple(sorted((k, repr(v)) for k, v in choice.options.items())))
+
+
+def normalized(choice: ColumnChoice) -> ColumnChoice:
+    """The choice with every option filled in (an OptionError if it is not valid)."""
+    return choice.normalized()
+
+
+class Session:
+    """The state of one window: table, choices, fit settings, fits, selection, file."""
+
+    table_loaded = Signal()
+    choices_changed = Signal(list)  # labels whose choice changed
+    fitted = Signal(str)  # label refitted (or its fit failed)
+    settings_changed = Signal()
+    selection_changed = Signal(list)
+    dirty_changed = Signal(bool)
+    project_path_changed = Signal(object)
+
+    def __init__(self, bins: int = BINS) -> None:
+        self.bins = bins
+        self.table: Any | None = None  # scalewright.io.Table
+        self._choices: dict[str, ColumnChoice] = {}
+        self._settings = FitSettings()
+        self._selection: list[str] = []
+        self._project_path: Path | None = None
+        self._dirty = False
+        self._clear_caches()
+        self.fit_count = 0  # how many times a column was fitted (tests and benchmark)
+
+    # ------------------------------------------------------------------ caches
+
+    def _clear_caches(self) -> None:
+        self._values: dict[str, np.ndarray] = {}
+        self._sorted: dict[str, np.ndarray] = {}
+        self._hist: dict[str, Histogram] = {}
+        self._summary: dict[str, ColumnSummary] = {}
+        self._suggestion: dict[str, Suggestion] = {}
+        self._clear_fits()
+
+    def _clear_fits(self) -> None:
+        # label -> {choice key -> FittedColumn | error text}
+        self._fits: dict[str, dict[tuple, FittedColumn | str]] = {}
+        self._scaled_figures: dict[int, Figures] = {}
+        self._fit_mask: np.ndarray | None = None
+        self._group_keys: tuple[np.ndarray, list[str]] | None = None
+        self._settings_error: str | None = None
+
+    # ------------------------------------------------------------------ table
+
+    @property
+    def data(self) -> pd.DataFrame:
+        if self.table is None:
+            return pd.DataFrame()
+        return self.table.data
+
+    @property
+    def labels(self) -> list[str]:
+        return [str(c) for c in self.data.columns]
+
+    @property
+    def n_rows(self) -> int:
+        return len(self.data)
+
+    def header(self, label: str) -> str:
+        """The column's name as written in the file."""
+        if self.table is None:
+            return label
+        try:
+            return str(self.table.headers[self.labels.index(label)])
+        except (ValueError, IndexError):
+            return label
+
+    def kind(self, label: str) -> str:
+        if self.table is None:
+            return ""
+        return str(self.table.kinds.get(label, "text"))
+
+    def why_not_scalable(self, label: str) -> str | None:
+        """None when the column can be scaled, otherwise the reason in plain words."""
+        kind = self.kind(label)
+        if kind == "number":
+            if label == self._settings.group_by:
+                return "the grouping column, so it cannot be scaled too"
+            return None
+        return _WHY_NOT.get(kind, "not a column of numbers, so it cannot be scaled")
+
+    def scalable(self, label: str) -> bool:
+        return self.why_not_scalable(label) is None
+
+    @property
+    def numeric_labels(self) -> list[str]:
+        return [lab for lab in self.labels if self.kind(lab) == "number"]
+
+    def load_table(
+        self,
+        table: Any,
+        *,
+        choices: Mapping[str, ColumnChoice] | None = None,
+        settings: FitSettings | None = None,
+        project_path: str | Path | None = None,
+        dirty: bool = False,
+    ) -> None:
+        """Show a newly read table, optionally with a project's choices, in one update.
+
+        Listeners hear ``table_loaded`` once (not one event per column). Choices for
+        columns that are not in the table are dropped; invalid ones raise before anything
+        changes.
+        """
+        labels = [str(c) for c in table.data.columns]
+        new_choices: dict[str, ColumnChoice] = {}
+        for label, choice in (choices or {}).items():
+            if label in labels:
+                new_choices[label] = normalized(choice)
+        self.table = table
+        self._clear_caches()
+        self._choices = {lab: new_choices.get(lab, ColumnChoice()) for lab in labels}
+        self._settings = settings or FitSettings()
+        self._project_path = Path(project_path) if project_path else None
+        self._selection = []
+        for label in labels:
+            if self._choices[label].method != "none":
+                self._fit(label)
+        self.table_loaded.emit()
+        self.project_path_changed.emit(self._project_path)
+        self.settings_changed.emit()
+        self.set_dirty(dirty)
+        first = next((lab for lab in labels if self.scalable(lab)), None)
+        self.set_selection([first] if first else [])
+
+    # ------------------------------------------------------------------ choices
+
+    def choice(self, label: str) -> ColumnChoice:
+        return self._choices.get(label, ColumnChoice())
+
+    @property
+    def choices(self) -> dict[str, ColumnChoice]:
+        """Every column's choice (a copy), 'leave as is' included."""
+        return dict(self._choices)
+
+    def chosen(self) -> dict[str, ColumnChoice]:
+        """The columns with a method other than 'leave as is'."""
+        return {k: v for k, v in self._choices.items() if v.method != "none"}
+
+    def set_choices(self, new: Mapping[str, ColumnChoice]) -> list[str]:
+        """Set several columns' choices; refit only those that changed. Returns them.
+
+        This is the raw setter the undo commands call; widgets go through the commands.
+        """
+        checked = {}
+        for label, choice in new.items():  # check everything before changing anything
+            if label not in self._choices:
+                raise ScalewrightError(f"there is no column '{label}'")
+            choice = normalized(choice)
+            if choice.method != "none" and not self.scalable(label):
+                raise ScalewrightError(f"'{label}' is {self.why_not_scalable(label)}")
+            checked[label] = choice
+        changed = []
+        for label, choice in checked.items():
+            if _choice_key(choice) != _choice_key(self._choices[label]):
+                self._choices[label] = choice
+                changed.append(label)
+        for label in changed:
+            if self._choices[label].method != "none":
+                self._fit(label)
+            self.fitted.emit(label)
+        if changed:
+            self.choices_changed.emit(changed)
+            self.set_dirty(True)
+        return changed
+
+    # ------------------------------------------------------------------ settings
+
+    @property
+    def settings(self) -> FitSettings:
+        return self._settings
+
+    def set_settings(self, settings: FitSettings) -> bool:
+        """Change which rows are fitted (and the grouping); every chosen column is refitted."""
+        if settings == self._settings:
+            return False
+        if settings.group_by is not None and self.choice(settings.group_by).method != "none":
+            raise ScalewrightError(
+                f"'{settings.group_by}' is being scaled, so it cannot be the grouping column"
+            )
+        self._settings = settings
+        self._clear_fits()
+        chosen = list(self.chosen())
+        for label in chosen:
+            self._fit(label)
+        self.settings_changed.emit()
+        for label in chosen:
+            self.fitted.emit(label)
+        self.set_dirty(True)
+        return True
+
+    @property
+    def settings_error(self) -> str | None:
+        """Why the fit settings cannot be used (for example no row has the value), or None."""
+        self._fit_inputs()
+        return self._settings_error
+
+    def _fit_inputs(self) -> tuple[np.ndarray | None, tuple | None]:
+        if self._fit_mask is None and self._settings_error is None and self.table is not None:
+            try:
+                self._fit_mask = fit_rows(self.data, self._settings)
+                gb = self._settings.group_by
+                if gb is not None:
+                    if gb not in self.data.columns:
+                        raise ScalewrightError(f"the grouping column '{gb}' is not in the table")
+                    codes, uniques = pd.factorize(self.data[gb], use_na_sentinel=True)
+                    self._group_keys = (codes, [value_key(u) for u in uniques])
+            except ScalewrightError as err:
+                self._settings_error = str(err)
+                self._fit_mask, self._group_keys = None, None
+        return self._fit_mask, self._group_keys
+
+    def values_of_fit_column(self, label: str) -> list[str]:
+        """The distinct values of a column, as text, for 'Fit on rows where'."""
+        if label not in self.data.columns:
+            return []
+        uniques = pd.unique(self.data[label].dropna())
+        keys = sorted({value_key(u) for u in uniques} - {""})
+        return keys
+
+    # ------------------------------------------------------------------ fitting
+
+    def _fit(self, label: str) -> FittedColumn | str:
+        choice = self._choices[label]
+        key = _choice_key(choice)
+        per_label = self._fits.setdefault(label, {})
+        if key in per_label:
+            return per_label[key]
+        mask, groups = self._fit_inputs()
+        if self._settings_error is not None:
+            result: FittedColumn | str = self._settings_error
+        else:
+            try:
+                result = fit_column(
+                    self.values(label), choice, column=label, fit_mask=mask, group_keys=groups
+                )
+                self.fit_count += 1
+            except ScalewrightError as err:
+                result = str(err)
+        per_label[key] = result
+        return result
+
+    def fit_state(self, label: str) -> FittedColumn | str | None:
+        """The column's fitted parameters, the fit's error text, or None for 'leave as is'."""
+        if label not in self._choices or self._choices[label].method == "none":
+            return None
+        return self._fit(label)
+
+    def fitted_column(self, label: str) -> FittedColumn | None:
+        state = self.fit_state(label)
+        return state if isinstance(state, FittedColumn) else None
+
+    def fit_error(self, label: str) -> str | None:
+        state = self.fit_state(label)
+        return state if isinstance(state, str) else None
+
+    def warnings(self, label: str) -> list[str]:
+        """Plain sentences about the column's fit: the error, or the fit's warnings."""
+        state = self.fit_state(label)
+        if isinstance(state, str):
+            prefix = f"column '{label}': "  # the window already says which column
+            return [state[len(prefix) :] if state.startswith(prefix) else state]
+        if isinstance(state, FittedColumn):
+            out = list(state.warnings)
+            if state.groups:
+                out.append(
+                    f"fitted separately for each of {len(state.groups)} groups of "
+                    f"'{self._settings.group_by}'"
+                )
+            return out
+        return []
+
+    def plan(self) -> FittedPlan:
+        """The fitted plan for every chosen column (raises the first fit error)."""
+        columns = {}
+        for label in self.chosen():
+            state = self._fit(label)
+            if isinstance(state, str):
+                raise ScalewrightError(state)
+            columns[label] = state
+        mask, _ = self._fit_inputs()
+        n = int(np.count_nonzero(mask)) if mask is not None else 0
+        return FittedPlan(columns, self._settings, n)
+
+    def problems(self) -> dict[str, str]:
+        """Columns whose choice cannot be fitted, with the reason."""
+        return {lab: err for lab in self.chosen() if (err := self.fit_error(lab))}
+
+    # ------------------------------------------------------------------ per-column figures
+
+    def values(self, label: str) -> np.ndarray:
+        if label not in self._values:
+            self._values[label] = column_values(self.data, label)
+        return self._values[label]
+
+    def sorted_values(self, label: str) -> np.ndarray:
+        if label not in self._sorted:
+            x = self.values(label)
+            self._sorted[label] = np.sort(x[np.isfinite(x)])
+        return self._sorted[label]
+
+    def histogram(self, label: str) -> Histogram:
+        if label not in self._hist:
+            self._hist[label] = histogram(self.values(label), self.bins)
+        return self._hist[label]
+
+    def scaled_edges(self, label: str) -> np.ndarray:
+        """The original bins' edges in scaled units (the same edges for 'leave as is')."""
+        edges = self.histogram(label).edges
+        fc = self.fitted_column(label)
+        if fc is None:
+            return edges.copy() if self.fit_error(label) is None else np.full_like(edges, np.nan)
+        return mapped_edges(edges, fc)
+
+    def summary(self, label: str) -> ColumnSummary:
+        if label not in self._summary:
+            self._summary[label] = describe(self.values(label))
+        return self._summary[label]
+
+    def suggestion(self, label: str) -> Suggestion:
+        if label not in self._suggestion:
+            self._suggestion[label] = suggest(self.summary(label))
+        return self._suggestion[label]
+
+    def figures(self, label: str) -> Figures:
+        s = self.summary(label)
+        return Figures(s.count, s.missing, s.mean, s.sd, s.min, s.max, s.skewness)
+
+    def scaled_figures(self, label: str) -> Figures | None:
+        """Summary figures in scaled units (None when the fit failed).
+
+        For straight-line methods they follow from the original figures exactly; for the
+        others (logarithm, power transforms, or one fit per group) they are computed once
+        from the scaled values and kept with the fitted column.
+        """
+        state = self.fit_state(label)
+        if isinstance(state, str):
+            return None
+        if state is None:
+            return self.figures(label)
+        cached = self._scaled_figures.get(id(state))
+        if cached is not None:
+            return cached
+        s = self.summary(label)
+        if state.method in AFFINE_METHODS and not state.groups:
+            b, one = state.forward(np.array([0.0, 1.0]))
+            a = float(one - b)
+
+            def f(v: float) -> float:
+                return a * v + float(b)
+
+            skew = s.skewness if a > 0 else (float("nan") if a == 0 else -s.skewness)
+            out = Figures(s.count, s.missing, f(s.mean), abs(a) * s.sd, f(s.min), f(s.max), skew)
+        else:
+            out = figures_of(self.scaled_values(label))
+        self._scaled_figures[id(state)] = out
+        return out
+
+    def scaled_values(self, label: str, rows: slice | np.ndarray | None = None) -> np.ndarray:
+        """Scaled values of the column (or of some rows), with each row's group parameters."""
+        x = self.values(label)
+        if rows is not None:
+            x = x[rows]
+        fc = self.fitted_column(label)
+        if fc is None:
+            return x.copy() if self.fit_error(label) is None else np.full_like(x, np.nan)
+        if not fc.groups or self._group_keys is None:
+            return fc.forward(x)
+        codes, keys = self._group_keys
+        if rows is not None:
+            codes = codes[rows]
+        out = np.full(x.shape, np.nan)
+        pooled = np.ones(x.shape, dtype=bool)
+        for code in np.unique(codes):
+            if code < 0:
+                continue
+            ps = fc.groups.get(keys[code])
+            if ps is None:
+                continue
+            here = codes == code
+            out[here] = fc.forward(x[here], ps)
+            pooled &= ~here
+        if pooled.any():
+            out[pooled] = fc.forward(x[pooled])
+        return out
+
+    def range_info(self, label: str, low: float, high: float, *, scaled: bool) -> RangeInfo:
+        """Count and bounds, in both units, of the values in [low, high] on either side."""
+        if low > high:
+            low, high = high, low
+        fc = self.fitted_column(label)
+        if scaled and fc is not None:
+            edges = self.scaled_edges(label)
+            finite = edges[np.isfinite(edges)]
+            if finite.size:
+                low = float(np.clip(low, finite[0], finite[-1]))
+                high = float(np.clip(high, finite[0], finite[-1]))
+            slo, shi = low, high
+            low, high = (float(v) for v in fc.inverse(np.array([slo, shi])))
+        else:
+            if fc is not None:
+                slo, shi = (float(v) for v in fc.forward(np.array([low, high])))
+            else:
+                slo, shi = low, high
+        srt = self.sorted_values(label)
+        start = int(np.searchsorted(srt, low, side="left"))
+        stop = int(np.searchsorted(srt, high, side="right"))
+        if scaled and fc is not None:
+            # The bounds came back through the inverse and may be off by a rounding step:
+            # settle the values at each end by their scaled value (the map is increasing).
+            def f(i: int) -> float:
+                return float(fc.forward(srt[i : i + 1])[0])
+
+            while start > 0 and f(start - 1) >= slo:
+                start -= 1
+            while start < srt.size and f(start) < slo:
+                start += 1
+            while stop < srt.size and f(stop) <= shi:
+                stop += 1
+            while stop > 0 and f(stop - 1) > shi:
+                stop -= 1
+        count = max(stop - start, 0)
+        first, last = bars_in_range(self.histogram(label).edges, low, high)
+        return RangeInfo(low, high, slo, shi, count, first, last)
+
+    # ------------------------------------------------------------------ selection, file
+
+    @property
+    def selection(self) -> list[str]:
+        return list(self._selection)
+
+    @property
+    def current(self) -> str | None:
+        """The column shown in the histograms: the first selected one."""
+        return self._selection[0] if self._selection else None
+
+    def set_selection(self, labels: Iterable[str]) -> None:
+        labels = [lab for lab in labels if lab in self._choices]
+        if labels != self._selection:
+            self._selection = labels
+            self.selection_changed.emit(list(labels))
+
+    @property
+    def project_path(self) -> Path | None:
+        return self._project_path
+
+    def set_project_path(self, path: str | Path | None) -> None:
+        path = Path(path) if path else None
+        if path != self._project_path:
+            self._project_path = path
+            self.project_path_changed.emit(path)
+
+    @property
+    def dirty(self) -> bool:
+        return self._dirty
+
+    def set_dirty(self, dirty: bool) -> None:
+        if dirty != self._dirty:
+            self._dirty = dirty
+            self.dirty_changed.emit(dirty)
+
+    def describe_fit(self, label: str) -> str:
+        """The fitted parameters in one plain line, e.g. 'mean 75.5, sd 36.7 (sample sd)'."""
+        state = self.fit_state(label)
+        if state is None:
+            return "Kept as it is."
+        if isinstance(state, str):
+            return state
+        p = state.pooled.params
+        method = get_method(state.method)
+        parts = []
+        for key, value in p.items():
+            if key in ("quantile_rule", "ddof", "standardize"):
+                continue
+            if isinstance(value, float):
+                parts.append(f"{key} {value:.6g}")
+            else:
+                parts.append(f"{key} {value}")
+        text = f"Fitted on {state.pooled.n:,} values: " + ", ".join(parts)
+        if "ddof" in p:
+            text += " (sample sd)" if p["ddof"] == 1 else " (population sd)"
+        if state.groups:
+            text += f"; one set per group ({len(state.groups)} groups)"
+        return f"{method.name}. {text}."

@@ -1,0 +1,283 @@
+"""The session and the undo commands, without any widget."""
+
+from __future__ import annotations
+
+import numpy as np
+import pytest
+
+from scalewright.engine import (
+    ColumnChoice,
+    FitSettings,
+    column_values,
+    describe,
+    fit,
+    fit_column,
+    histogram,
+    mapped_edges,
+)
+from scalewright.errors import OptionError, ScalewrightError
+from scalewright.gui import commands
+from scalewright.gui.state import Session
+
+
+class Recorder:
+    def __init__(self, session: Session) -> None:
+        self.events: list[tuple] = []
+        session.table_loaded.connect(lambda: self.events.append(("table_loaded",)))
+        session.choices_changed.connect(lambda labels: self.events.append(("choices", labels)))
+        session.fitted.connect(lambda label: self.events.append(("fitted", label)))
+        session.settings_changed.connect(lambda: self.events.append(("settings",)))
+        session.selection_changed.connect(lambda labels: self.events.append(("selection", labels)))
+        session.dirty_changed.connect(lambda d: self.events.append(("dirty", d)))
+
+    def of(self, name: str) -> list[tuple]:
+        return [e for e in self.events if e[0] == name]
+
+
+def test_kinds_and_what_can_be_scaled(session):
+    assert session.kind("tree_code") == "identifier"
+    assert not session.scalable("tree_code")
+    assert "identifier" in session.why_not_scalable("tree_code")
+    assert not session.scalable("orchard")
+    assert session.scalable("yield_kg")
+    assert "yield_kg" in session.numeric_labels
+    assert "tree_code" not in session.numeric_labels
+    # the first scalable column is selected on load
+    assert session.selection == ["tree_age_years"]
+
+
+def test_identifier_cannot_be_given_a_method(session, stack):
+    with pytest.raises(ScalewrightError, match="identifier"):
+        commands.push_choices(stack, session, {"tree_code": ColumnChoice("zscore")})
+    assert stack.count() == 0
+    assert session.choice("tree_code").method == "none"
+    # set_method quietly skips columns that cannot be scaled
+    assert commands.set_method(stack, session, ["tree_code", "yield_kg"], "zscore")
+    assert session.choice("yield_kg").method == "zscore"
+    assert session.choice("tree_code").method == "none"
+
+
+def test_set_method_on_several_columns_is_one_undo_step(session, stack):
+    rec = Recorder(session)
+    assert commands.set_method(stack, session, ["yield_kg", "soil_ph", "sugar_brix"], "minmax")
+    assert stack.count() == 1
+    assert {session.choice(c).method for c in ("yield_kg", "soil_ph", "sugar_brix")} == {"minmax"}
+    assert rec.of("choices") == [("choices", ["yield_kg", "soil_ph", "sugar_brix"])]
+    assert session.dirty
+    stack.undo()
+    assert {session.choice(c).method for c in ("yield_kg", "soil_ph", "sugar_brix")} == {"none"}
+    stack.redo()
+    assert session.choice("soil_ph") == ColumnChoice("minmax", {"low": 0.0, "high": 1.0})
+
+
+def test_nothing_is_pushed_when_nothing_changes(session, stack):
+    commands.set_method(stack, session, ["yield_kg"], "zscore")
+    assert not commands.set_method(stack, session, ["yield_kg"], "zscore")
+    assert not commands.set_option(stack, session, ["yield_kg"], "sd", "sample")
+    assert stack.count() == 1
+
+
+def test_repeated_option_edits_merge_into_one_step(session, stack):
+    commands.set_method(stack, session, ["yield_kg", "soil_ph"], "minmax")
+    for value in (-0.0, -0.5, -1.0):  # typing "-1" into the low box
+        commands.set_option(stack, session, ["yield_kg", "soil_ph"], "low", value)
+    assert stack.count() == 2
+    assert session.choice("soil_ph").options["low"] == -1.0
+    stack.undo()
+    assert session.choice("soil_ph").options["low"] == 0.0
+    assert session.choice("soil_ph").method == "minmax"
+    # a different option does not merge into the previous one
+    stack.redo()
+    commands.set_option(stack, session, ["yield_kg", "soil_ph"], "high", 2.0)
+    assert stack.count() == 3
+
+
+def test_typing_back_to_the_old_value_leaves_nothing_to_undo(session, stack):
+    commands.set_method(stack, session, ["yield_kg"], "minmax")
+    commands.set_option(stack, session, ["yield_kg"], "high", 5.0)
+    commands.set_option(stack, session, ["yield_kg"], "high", 1.0)
+    assert stack.count() == 1  # the merged option edit became obsolete and was dropped
+
+
+def test_invalid_option_is_refused_before_anything_changes(session, stack):
+    commands.set_method(stack, session, ["yield_kg"], "minmax")
+    with pytest.raises(OptionError, match="low < high"):
+        commands.set_option(stack, session, ["yield_kg"], "low", 3.0)
+    assert session.choice("yield_kg").options["low"] == 0.0
+    assert stack.count() == 1
+
+
+def test_only_changed_columns_are_refitted(session, stack):
+    commands.set_method(stack, session, ["yield_kg", "soil_ph"], "zscore")
+    before = session.fit_count
+    rec = Recorder(session)
+    commands.set_method(stack, session, ["yield_kg", "soil_ph"], "zscore")  # no change
+    commands.set_option(stack, session, ["yield_kg"], "sd", "population")
+    assert session.fit_count == before + 1
+    assert rec.of("fitted") == [("fitted", "yield_kg")]
+    # undoing returns to a fit already made: nothing is fitted again
+    stack.undo()
+    assert session.fit_count == before + 1
+    assert session.fitted_column("yield_kg").pooled.params["ddof"] == 1
+
+
+def test_fits_match_the_engine(session, harvest_table, stack):
+    commands.set_method(stack, session, ["yield_kg"], "boxcox")
+    commands.set_option(stack, session, ["yield_kg"], "standardize", True)
+    expected = fit_column(
+        column_values(harvest_table.data, "yield_kg"),
+        ColumnChoice("boxcox", {"standardize": True}),
+        column="yield_kg",
+    )
+    got = session.fitted_column("yield_kg")
+    assert got.pooled.params == expected.pooled.params
+
+
+def test_fit_settings_refit_every_chosen_column_and_match_the_engine(session, harvest_table, stack):
+    commands.set_method(stack, session, ["yield_kg", "soil_ph"], "zscore")
+    rec = Recorder(session)
+    settings = FitSettings(fit_where=("split", "train"))
+    assert commands.push_settings(stack, session, settings)
+    assert session.settings == settings
+    assert sorted(e[1] for e in rec.of("fitted")) == ["soil_ph", "yield_kg"]
+    plan = fit(harvest_table.data, session.chosen(), settings)
+    for label in ("yield_kg", "soil_ph"):
+        assert session.fitted_column(label).pooled.params == plan[label].pooled.params
+    # the sample data's README gives the yield_kg figures fitted on the training rows
+    p = session.fitted_column("yield_kg").pooled.params
+    assert p["mean"] == pytest.approx(75.54385054488843, rel=1e-12)
+    assert p["sd"] == pytest.approx(36.650738430940336, rel=1e-12)
+    stack.undo()
+    assert session.settings == FitSettings()
+    assert session.fitted_column("yield_kg").pooled.n == describe(session.values("yield_kg")).count
+
+
+def test_grouping_by_a_scaled_column_is_refused(session, stack):
+    with pytest.raises(ScalewrightError, match="no column"):
+        commands.push_settings(stack, session, FitSettings(group_by="nowhere"))
+    commands.set_method(stack, session, ["soil_ph"], "zscore")
+    with pytest.raises(ScalewrightError, match="grouping column"):
+        commands.push_settings(stack, session, FitSettings(group_by="soil_ph"))
+    assert stack.count() == 1
+    assert commands.push_settings(stack, session, FitSettings(group_by="orchard"))
+    fc = session.fitted_column("soil_ph")
+    assert len(fc.groups) == 6
+    assert any("group" in w for w in session.warnings("soil_ph"))
+
+
+def test_grouped_scaled_values_use_each_rows_group(session, harvest_table, stack):
+    commands.set_method(stack, session, ["soil_ph"], "zscore")
+    commands.push_settings(stack, session, FitSettings(group_by="orchard"))
+    from scalewright.engine import apply
+
+    expected, _ = apply(harvest_table.data, session.plan())
+    got = session.scaled_values("soil_ph")
+    np.testing.assert_allclose(got, expected["soil_ph"].to_numpy(float), equal_nan=True)
+    np.testing.assert_allclose(
+        session.scaled_values("soil_ph", slice(100, 200)), got[100:200], equal_nan=True
+    )
+
+
+def test_suggest_is_one_undoable_step_with_reasons(session, stack):
+    reasons = commands.apply_suggestions(
+        stack, session, ["yield_kg", "pest_trap_count", "tree_code"]
+    )
+    assert set(reasons) == {"yield_kg", "pest_trap_count"}
+    assert "Box-Cox" in reasons["yield_kg"]
+    assert session.choice("yield_kg") == ColumnChoice("boxcox", {"standardize": True})
+    assert session.choice("pest_trap_count").method == "maxabs"
+    assert stack.count() == 1
+    stack.undo()
+    assert session.choice("yield_kg").method == "none"
+
+
+def test_histogram_bars_map_one_to_one(session, stack):
+    """The scaled histogram has the same counts on edges mapped through the fit."""
+    values = session.values("yield_kg")
+    h = session.histogram("yield_kg")
+    assert h.counts.sum() == np.isfinite(values).sum()
+    for method in ("minmax", "zscore", "log", "boxcox", "yeojohnson", "robust"):
+        commands.set_method(stack, session, ["yield_kg"], method)
+        fc = session.fitted_column("yield_kg")
+        edges = session.scaled_edges("yield_kg")
+        np.testing.assert_allclose(edges, mapped_edges(h.edges, fc))
+        # counting the scaled values between scaled edge i and i+1 gives bar i's count
+        scaled = fc.forward(values)
+        scaled = scaled[np.isfinite(scaled)]
+        recount = np.histogram(scaled, bins=edges)[0]
+        np.testing.assert_array_equal(recount, h.counts, err_msg=method)
+    # the histogram itself is made once from the values
+    assert session.histogram("yield_kg") is h
+    np.testing.assert_array_equal(h.counts, histogram(values, session.bins).counts)
+
+
+def test_range_info_in_both_units(session, stack):
+    commands.set_method(stack, session, ["yield_kg"], "zscore")
+    values = session.values("yield_kg")
+    fc = session.fitted_column("yield_kg")
+    info = session.range_info("yield_kg", 50.0, 100.0, scaled=False)
+    assert info.count == np.count_nonzero((values >= 50) & (values <= 100))
+    assert info.scaled_low == pytest.approx(float(fc.forward(np.array([50.0]))[0]))
+    # the same range given in scaled units gives the same values
+    back = session.range_info("yield_kg", info.scaled_low, info.scaled_high, scaled=True)
+    assert back.low == pytest.approx(50.0)
+    assert back.high == pytest.approx(100.0)
+    assert back.count == info.count
+
+
+def test_scaled_figures_match_describe_of_scaled_values(session, stack):
+    for method in ("minmax", "zscore", "robust", "log", "boxcox"):
+        commands.set_method(stack, session, ["yield_kg"], method)
+        fig = session.scaled_figures("yield_kg")
+        d = describe(session.fitted_column("yield_kg").forward(session.values("yield_kg")))
+        assert fig.n == d.count and fig.missing == d.missing
+        for name in ("mean", "sd", "min", "max", "skewness"):
+            assert getattr(fig, name) == pytest.approx(getattr(d, name), rel=1e-9, abs=1e-12), (
+                method,
+                name,
+            )
+
+
+def test_fit_error_is_reported_not_raised(session, stack):
+    # Box-Cox needs values above 0; pest_trap_count is mostly zeros
+    commands.set_method(stack, session, ["pest_trap_count"], "boxcox")
+    err = session.fit_error("pest_trap_count")
+    assert err and "Yeo-Johnson" in err
+    assert err.startswith("column 'pest_trap_count': ")
+    # the window names the column already, so the warning drops that part
+    assert session.warnings("pest_trap_count") == [err.removeprefix("column 'pest_trap_count': ")]
+    assert session.problems() == {"pest_trap_count": err}
+    assert np.isnan(session.scaled_edges("pest_trap_count")).all()
+    with pytest.raises(ScalewrightError):
+        session.plan()
+
+
+def test_loading_a_project_is_one_batched_update(harvest_table):
+    s = Session()
+    rec = Recorder(s)
+    s.load_table(
+        harvest_table,
+        choices={"yield_kg": ColumnChoice("zscore"), "gone": ColumnChoice("minmax")},
+        settings=FitSettings(fit_where=("split", "train")),
+        project_path="/tmp/x.swproj",
+    )
+    assert rec.of("table_loaded") == [("table_loaded",)]
+    assert rec.of("choices") == []  # no per-column events while loading
+    assert s.choice("yield_kg").method == "zscore"
+    assert "gone" not in s.choices
+    assert s.fitted_column("yield_kg").pooled.n < describe(s.values("yield_kg")).count
+    assert not s.dirty
+    assert str(s.project_path) == "/tmp/x.swproj"
+
+
+def test_selection_and_dirty_events(session, stack):
+    rec = Recorder(session)
+    session.set_selection(["yield_kg", "soil_ph", "no_such_column"])
+    assert session.selection == ["yield_kg", "soil_ph"]
+    assert session.current == "yield_kg"
+    session.set_selection(["yield_kg", "soil_ph"])  # same: no event
+    assert rec.of("selection") == [("selection", ["yield_kg", "soil_ph"])]
+    commands.set_method(stack, session, ["yield_kg"], "zscore")
+    assert rec.of("dirty") == [("dirty", True)]
+    session.set_dirty(False)
+    assert rec.of("dirty")[-1] == ("dirty", False)
