@@ -30,16 +30,21 @@ from PySide6.QtWidgets import (
     QWidget,
 )
 
-from .. import __version__
+from .. import __version__, tasks
+from .. import io as swio
 from ..engine import METHODS
-from ..errors import ScalewrightError
+from ..errors import Cancelled, ScalewrightError
+from ..project import load_project, locate_source, save_project
 from . import commands, theme
+from .apply_dialog import ApplyDialog
 from .column_list import ColumnList
 from .errors import show_error
 from .histograms import HistogramPanel
+from .import_dialog import ImportDialog
 from .jobs import JobRunner
 from .method_panel import MethodPanel
 from .preview import PreviewPanel
+from .restore_dialog import RestoreDialog
 from .state import Session
 
 PROJECT_SUFFIX = ".swproj"
@@ -437,11 +442,6 @@ class MainWindow(QMainWindow):
         if not asked and not self._may_discard():
             return None
         try:
-            from .import_dialog import ImportDialog
-        except ImportError:  # the dialog is optional: read with what was detected
-            self.load_data(path)
-            return None
-        try:
             dialog = ImportDialog(path, self)
         except Exception as err:  # any failure to build it is shown plainly
             self.show_message(err)
@@ -454,8 +454,6 @@ class MainWindow(QMainWindow):
 
     def load_data(self, path: str | Path, options: Any = None, *, then=None):
         """Read the file in the background and show it; on error nothing changes."""
-        from .. import io as swio
-
         path = Path(path)
 
         def work(progress, cancelled):
@@ -502,8 +500,6 @@ class MainWindow(QMainWindow):
 
     def open_project(self, path: str | Path, *, asked: bool = False):
         """Load a project and its data file; the choices are fitted again on that data."""
-        from ..project import load_project, locate_source
-
         if not asked and not self._may_discard():
             return None
         path = Path(path)
@@ -554,8 +550,6 @@ class MainWindow(QMainWindow):
 
     def _project_job(self):
         """A function fitting the current choices into a Project (run off the interface thread)."""
-        from .. import tasks
-
         table = self.session.table
         choices = self.session.chosen()
         settings = self.session.settings
@@ -580,8 +574,6 @@ class MainWindow(QMainWindow):
 
     def save_project(self, path: str | Path, *, wait: bool = False) -> bool:
         """Fit the choices and write the project file (in the background)."""
-        from ..project import save_project
-
         if self.session.table is None:
             return False
         problems = self.session.problems()
@@ -597,8 +589,6 @@ class MainWindow(QMainWindow):
         def work(progress, cancelled):
             project = make()
             if cancelled():
-                from ..errors import Cancelled
-
                 raise Cancelled()
             save_project(project, path)
             return project
@@ -638,8 +628,6 @@ class MainWindow(QMainWindow):
 
     def export(self, target: str | Path, *, clip: bool = False):
         """Write the scaled table (workbook with parameters, or CSV/TSV) in the background."""
-        from .. import tasks
-
         if self.session.table is None:
             return None
         problems = self.session.problems()
@@ -676,8 +664,6 @@ class MainWindow(QMainWindow):
     def current_project(self, then) -> None:
         """Call ``then(project)`` with the project for the current choices (fitted in the
         background), or with one the user picks when no data is open."""
-        from .. import tasks
-
         if self.session.table is not None and self.session.chosen():
             problems = self.session.problems()
             if problems:
@@ -703,34 +689,11 @@ class MainWindow(QMainWindow):
         self.current_project(self._show_apply)
 
     def _show_apply(self, project) -> None:
-        try:
-            from .apply_dialog import ApplyDialog
-        except ImportError:
-            self._apply_without_dialog(project)
-            return
         dialog = ApplyDialog(project, self)
         dialog.fileWritten.connect(lambda path, _reports: self.file_written.emit(Path(path)))
         dialog.setModal(True)
         dialog.open()
         self.apply_dialog = dialog
-
-    def _apply_without_dialog(self, project) -> None:
-        from .. import tasks
-
-        data = self.ask_open_path("Apply to which file?", DATA_FILTER)
-        if not data:
-            return
-        target = self.ask_save_path(
-            "Save the scaled file as", EXPORT_FILTER, Path(data).stem + "_scaled.xlsx"
-        )
-        if not target:
-            return
-        self.jobs.run(
-            f"Scaling {Path(data).name}",
-            lambda p, c: tasks.apply_to_file(project, data, target, progress=p, cancelled=c),
-            lambda reports: self._report_written(target, tasks.describe_reports(reports)),
-            self.show_message,
-        )
 
     def open_restore_dialog(self) -> None:
         """Turn scaled values back into original units (a dialog maps the columns).
@@ -744,49 +707,11 @@ class MainWindow(QMainWindow):
             self._show_restore(None)
 
     def _show_restore(self, project) -> None:
-        try:
-            from .restore_dialog import RestoreDialog
-        except ImportError:
-            self._restore_without_dialog(project)
-            return
         dialog = RestoreDialog(project, self)
-        if hasattr(dialog, "fileWritten"):
-            dialog.fileWritten.connect(lambda path, _reports: self.file_written.emit(Path(path)))
+        dialog.fileWritten.connect(lambda path, _reports: self.file_written.emit(Path(path)))
         dialog.setModal(True)
         dialog.open()
         self.restore_dialog = dialog
-
-    def _restore_without_dialog(self, project) -> None:
-        from .. import tasks
-
-        if project is None:
-            path = self.ask_open_path(
-                "Which project?", "Projects or scaled workbooks (*.swproj *.xlsx)"
-            )
-            if not path:
-                return
-            try:
-                project = tasks.load_project_or_workbook(path)
-            except ScalewrightError as err:
-                self.show_message(err)
-                return
-
-        data = self.ask_open_path("Restore which file?", DATA_FILTER)
-        if not data:
-            return
-        target = self.ask_save_path(
-            "Save the restored file as", EXPORT_FILTER, Path(data).stem + "_original_units.csv"
-        )
-        if not target:
-            return
-        self.jobs.run(
-            f"Restoring {Path(data).name}",
-            lambda p, c: tasks.restore_file(project, data, target, progress=p, cancelled=c),
-            lambda reports: self._report_written(
-                target, tasks.describe_reports(reports, restoring=True)
-            ),
-            self.show_message,
-        )
 
     def _report_written(self, target, lines: list[str]) -> None:
         self.file_written.emit(Path(target))
