@@ -223,7 +223,7 @@ def apply_to_file(
     plan = _fitted(project)
     table = _read(data_path, sheet, _part(progress, 0.0, 0.5), cancelled)
     _check_fitted_columns_numeric(table, plan.columns)
-    data, reports = apply(_blank_as_numbers(table, plan.columns), plan, clip=clip)
+    data, reports = apply(blank_as_numbers(table, plan.columns), plan, clip=clip)
     write_output(
         target,
         data,
@@ -236,21 +236,28 @@ def apply_to_file(
     return reports
 
 
+def not_numbers(table: Table, label: str) -> str:
+    """Why a column of ``table`` cannot be scaled or restored ("" when it can)."""
+    kind = table.kinds.get(label)
+    if kind is not None and kind not in (ColumnKind.NUMBER, ColumnKind.EMPTY):
+        return f"holds {kind} values in {table.source.name}, not numbers"
+    return ""
+
+
 def _check_fitted_columns_numeric(table: Table, columns: Sequence[str]) -> None:
     for label in columns:
         if label not in table.data.columns:
             raise ColumnError(label, f"was fitted in the project but is not in {table.source.name}")
-        kind = table.kinds.get(label)
-        if kind is not None and kind not in (ColumnKind.NUMBER, ColumnKind.EMPTY):
-            raise ColumnError(
-                label,
-                f"holds {kind} values in {table.source.name}, not numbers, so it cannot be "
-                "scaled or restored",
-            )
+        if why := not_numbers(table, label):
+            raise ColumnError(label, f"{why}, so it cannot be scaled or restored")
 
 
-def _blank_as_numbers(table: Table, columns: Sequence[str]) -> pd.DataFrame:
-    """The data with wholly blank columns among ``columns`` as float (all missing)."""
+def blank_as_numbers(table: Table, columns: Sequence[str]) -> pd.DataFrame:
+    """The data with wholly blank columns among ``columns`` as float (all missing).
+
+    A column that is blank in a new file reads as kind EMPTY; scaling or restoring it gives
+    blanks rather than an error.
+    """
     empty = [c for c in columns if table.kinds.get(c) == ColumnKind.EMPTY]
     if not empty:
         return table.data
@@ -300,7 +307,7 @@ def restore_file(
     _check_fitted_columns_numeric(table, list(pairs))
     if project.source is not None:
         ensure_not_source(target, project.source)
-    data, reports = restore(_blank_as_numbers(table, pairs), plan, pairs)
+    data, reports = restore(blank_as_numbers(table, pairs), plan, pairs)
     write_output(
         target,
         data,

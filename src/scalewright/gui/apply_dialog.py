@@ -17,7 +17,6 @@ from collections.abc import Callable
 from pathlib import Path
 from typing import Any
 
-import pandas as pd
 from PySide6.QtCore import Qt, QTimer, Signal
 from PySide6.QtGui import QBrush, QColor
 from PySide6.QtWidgets import (
@@ -744,27 +743,6 @@ class ApplyDialog(WritingDialog):
 # --------------------------------------------------------------------------- helpers
 
 
-def numeric_problem(table: swio.Table, column: str) -> str:
-    """Why a column of the new file cannot be scaled or restored ("" when it can)."""
-    kind = table.kinds.get(column)
-    if kind is not None and kind not in (swio.ColumnKind.NUMBER, swio.ColumnKind.EMPTY):
-        from .import_dialog import kind_word
-
-        return f"holds {kind_word(kind)[0]} values in this file, not numbers"
-    return ""
-
-
-def numbers_frame(table: swio.Table, columns) -> pd.DataFrame:
-    """The data with wholly blank columns among ``columns`` as float (as the tasks do)."""
-    empty = [c for c in columns if table.kinds.get(c) == swio.ColumnKind.EMPTY]
-    if not empty:
-        return table.data
-    data = table.data.copy()
-    for c in empty:
-        data[c] = pd.Series(float("nan"), index=data.index, dtype="float64")
-    return data
-
-
 def preview_apply(table: swio.Table, plan) -> tuple[dict, list[str], dict[str, str]]:
     """(reports by column, missing columns, problems by column) for applying ``plan``.
 
@@ -779,14 +757,14 @@ def preview_apply(table: swio.Table, plan) -> tuple[dict, list[str], dict[str, s
     for column, fc in plan.columns.items():
         if column not in table.data.columns:
             missing.append(column)
-        elif why := numeric_problem(table, column):
+        elif why := tasks.not_numbers(table, column):
             problems[column] = why
         else:
             present[column] = fc
     reports: dict[str, engine.ColumnReport] = {}
     if present:
         sub = engine.FittedPlan(present, plan.settings, plan.n_rows)
-        _, found = engine.apply(numbers_frame(table, present), sub, clip=False)
+        _, found = engine.apply(tasks.blank_as_numbers(table, present), sub, clip=False)
         reports = {r.column: r for r in found}
     return reports, missing, problems
 

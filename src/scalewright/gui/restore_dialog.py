@@ -42,8 +42,6 @@ from .apply_dialog import (
     FileRow,
     OutputRow,
     WritingDialog,
-    numbers_frame,
-    numeric_problem,
     plural,
     set_message,
 )
@@ -386,7 +384,7 @@ class RestoreDialog(WritingDialog):
         columns = [str(c) for c in self._table.data.columns]
         if fitted:
             auto = tasks.auto_mapping(columns, self._project)
-            self._auto = {c: f for c, f in auto.items() if not numeric_problem(self._table, c)}
+            self._auto = {c: f for c, f in auto.items() if not tasks.not_numbers(self._table, c)}
         self.mapping_table.setRowCount(len(columns))
         for r, column in enumerate(columns):
             name = QTableWidgetItem(column)
@@ -401,7 +399,7 @@ class RestoreDialog(WritingDialog):
             for f, fc in fitted.items():
                 box.addItem(f"{f}  ({engine.get_method(fc.method).name})", f)
                 box.setItemData(box.count() - 1, _params_tip(fc), Qt.ItemDataRole.ToolTipRole)
-            why = numeric_problem(self._table, column)
+            why = tasks.not_numbers(self._table, column)
             if why or not fitted:
                 box.setEnabled(False)
                 box.setToolTip(f"'{column}' {why}, so it is written as it is." if why else
@@ -466,7 +464,7 @@ class RestoreDialog(WritingDialog):
         notes: list[str] = []
         frame = pd.DataFrame()
         if self._table is not None and mapping and self._project is not None:
-            head = numbers_frame(self._table, mapping).iloc[:PREVIEW_ROWS]
+            head = tasks.blank_as_numbers(self._table, mapping).iloc[:PREVIEW_ROWS]
             try:
                 restored, reports = engine.restore(head, self._project.plan, mapping)
             except ScalewrightError as err:
