@@ -1,0 +1,128 @@
+"""The plain data types the io layer hands to the rest of the program.
+
+They are kept free of any reading logic so that the project file, the command line and the
+window can build, store and compare them without touching a file.
+"""
+
+from __future__ import annotations
+
+from collections.abc import Callable
+from dataclasses import asdict, dataclass, field, fields
+from enum import StrEnum
+from pathlib import Path
+
+import pandas as pd
+
+SUPPORTED_READ = (".csv", ".tsv", ".txt", ".xlsx", ".xlsm", ".xls", ".ods")
+SUPPORTED_WRITE = (".csv", ".tsv", ".xlsx")
+TEXT_SUFFIXES = (".csv", ".tsv", ".txt")
+WORKBOOK_SUFFIXES = (".xlsx", ".xlsm", ".xls", ".ods")
+
+DELIMITERS = (",", ";", "\t", "|")
+DECIMALS = (".", ",")
+THOUSANDS = ("", ",", ".", " ", "'")
+
+Progress = Callable[[float], None]
+CancelCheck = Callable[[], bool]
+
+
+@dataclass(frozen=True)
+class ReadOptions:
+    """How to read a file; ``None`` means "detect it". Stored in the project file."""
+
+    encoding: str | None = None
+    delimiter: str | None = None
+    decimal: str | None = None
+    thousands: str | None = None
+    header_row: int | None = None
+    sheet: str | None = None
+
+    def __post_init__(self) -> None:
+        _check_value("encoding", self.encoding, str)
+        _check_value("delimiter", self.delimiter, str)
+        _check_value("decimal", self.decimal, str)
+        _check_value("thousands", self.thousands, str)
+        _check_value("header_row", self.header_row, int)
+        _check_value("sheet", self.sheet, str)
+        if self.encoding is not None:
+            import codecs
+
+            try:
+                codecs.lookup(self.encoding)
+            except LookupError:
+                raise ValueError(f"encoding: unknown encoding {self.encoding!r}") from None
+        if self.delimiter is not None and (
+            len(self.delimiter) != 1 or self.delimiter in '"\r\n' or self.delimiter.isalnum()
+        ):
+            raise ValueError(
+                f"delimiter: must be one character other than a quote, line end, letter or "
+                f"digit (usually one of {', '.join(map(repr, DELIMITERS))}), not {self.delimiter!r}"
+            )
+        if self.decimal is not None and self.decimal not in DECIMALS:
+            raise ValueError(f"decimal: must be '.' or ',', not {self.decimal!r}")
+        if self.thousands is not None and self.thousands not in THOUSANDS:
+            raise ValueError(f"thousands: must be one of {THOUSANDS!r}, not {self.thousands!r}")
+        if (
+            self.decimal is not None
+            and self.thousands is not None
+            and self.decimal == self.thousands
+        ):
+            raise ValueError("thousands: cannot be the same mark as decimal")
+        if self.header_row is not None and self.header_row < 0:
+            raise ValueError(f"header_row: must be 0 or more, not {self.header_row}")
+
+    def to_dict(self) -> dict:
+        """JSON-ready: plain strings, ints and None."""
+        return asdict(self)
+
+    @classmethod
+    def from_dict(cls, d: dict) -> ReadOptions:
+        """Build from ``to_dict`` output; a missing key means "detect"."""
+        if not isinstance(d, dict):
+            raise ValueError(f"read options: expected an object, not {type(d).__name__}")
+        known = {f.name for f in fields(cls)}
+        for key in d:
+            if key not in known:
+                raise ValueError(f"{key}: not a read option (known: {', '.join(sorted(known))})")
+        return cls(**d)
+
+
+def _check_value(name: str, value: object, kind: type) -> None:
+    if value is None:
+        return
+    if kind is int and isinstance(value, bool) or not isinstance(value, kind):
+        raise ValueError(f"{name}: expected {kind.__name__} or null, not {value!r}")
+
+
+class ColumnKind(StrEnum):
+    NUMBER = "number"
+    IDENTIFIER = "identifier"
+    DATE = "date"
+    BOOLEAN = "boolean"
+    TEXT = "text"
+    EMPTY = "empty"
+
+
+@dataclass
+class Table:
+    """A loaded table: unique labels in ``data``, the file's own header text in ``headers``."""
+
+    data: pd.DataFrame
+    headers: list[str]
+    kinds: dict[str, ColumnKind]
+    source: Path
+    options: ReadOptions
+    notes: list[str] = field(default_factory=list)
+    sheets: list[str] = field(default_factory=list)
+
+
+@dataclass
+class Detection:
+    """What an import dialog shows while the user adjusts the options."""
+
+    options: ReadOptions
+    sheets: list[str]
+    preview: pd.DataFrame
+    notes: list[str]
+    headers: list[str] = field(default_factory=list)
+    kinds: dict[str, ColumnKind] = field(default_factory=dict)

@@ -1,0 +1,92 @@
+"""Entry points for reading: choose the reader by extension and check the file first."""
+
+from __future__ import annotations
+
+import hashlib
+from pathlib import Path
+
+from ..errors import ReadError
+from .csv_reader import read_text_table
+from .options import (
+    SUPPORTED_READ,
+    TEXT_SUFFIXES,
+    CancelCheck,
+    Detection,
+    Progress,
+    ReadOptions,
+    Table,
+)
+from .workbook_reader import list_workbook_sheets, read_workbook_table
+
+
+def _checked(path) -> Path:
+    path = Path(path)
+    if not path.exists():
+        raise ReadError(path, "the file does not exist")
+    if path.is_dir():
+        raise ReadError(path, "this is a folder, not a file")
+    suffix = path.suffix.lower()
+    if suffix not in SUPPORTED_READ:
+        raise ReadError(
+            path,
+            f"cannot read '{suffix or 'no extension'}' files; "
+            f"open one of {', '.join(SUPPORTED_READ)}",
+        )
+    return path
+
+
+def read_table(
+    path,
+    options: ReadOptions | None = None,
+    *,
+    progress: Progress | None = None,
+    cancelled: CancelCheck | None = None,
+) -> Table:
+    """Read a whole CSV/TSV/TXT or workbook file; every detected option is filled in."""
+    path = _checked(path)
+    options = options or ReadOptions()
+    if path.suffix.lower() in TEXT_SUFFIXES:
+        table = read_text_table(path, options, progress=progress, cancelled=cancelled)
+    else:
+        table = read_workbook_table(path, options, progress=progress, cancelled=cancelled)
+    if progress is not None:
+        progress(1.0)
+    return table
+
+
+def detect(path, options: ReadOptions | None = None, *, preview_rows: int = 50) -> Detection:
+    """Read only the start of the file: what would be detected and how the rows would load."""
+    path = _checked(path)
+    options = options or ReadOptions()
+    if path.suffix.lower() in TEXT_SUFFIXES:
+        table = read_text_table(path, options, preview_rows=preview_rows)
+    else:
+        table = read_workbook_table(path, options, preview_rows=preview_rows)
+    return Detection(
+        table.options, table.sheets, table.data, table.notes, table.headers, table.kinds
+    )
+
+
+def list_sheets(path) -> list[str]:
+    """Visible worksheet names of a workbook; [] for delimited text files."""
+    path = _checked(path)
+    if path.suffix.lower() in TEXT_SUFFIXES:
+        return []
+    return list_workbook_sheets(path)
+
+
+def fingerprint(path) -> tuple[int, str]:
+    """(size in bytes, SHA-256 hex) so a project can tell whether its source changed."""
+    path = Path(path)
+    digest = hashlib.sha256()
+    size = 0
+    try:
+        with open(path, "rb") as fh:
+            while block := fh.read(1 << 20):
+                digest.update(block)
+                size += len(block)
+    except FileNotFoundError:
+        raise ReadError(path, "the file does not exist") from None
+    except OSError as err:
+        raise ReadError(path, f"the file cannot be opened ({err.strerror})") from None
+    return size, digest.hexdigest()
