@@ -19,6 +19,7 @@ from .plan import (
     fit,
     fit_column,
     fit_rows,
+    group_codes,
     restore,
     value_key,
 )
@@ -45,6 +46,7 @@ __all__ = [
     "fit_column",
     "fit_rows",
     "get_method",
+    "group_codes",
     "histogram",
     "mapped_edges",
     "restore",

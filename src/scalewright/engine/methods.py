@@ -42,9 +42,17 @@ class FitError(ScalewrightError):
 class FitResult(dict):
     """Fitted parameters (a plain dict) with the warnings raised while fitting."""
 
-    def __init__(self, params: Mapping[str, Any], warnings: list[str] | None = None) -> None:
+    def __init__(
+        self,
+        params: Mapping[str, Any],
+        warnings: list[str] | None = None,
+        data_range: tuple[float, float] | None = None,
+    ) -> None:
         super().__init__(params)
         self.warnings = list(warnings or [])
+        #: (min, max) of the fitted values when the method computed it anyway, so that
+        #: the plan need not read the values again.
+        self.data_range = data_range
 
 
 _YES = {"yes", "true", "1", "on"}
@@ -110,11 +118,80 @@ class Method:
     def fit(self, x: np.ndarray, options: dict[str, Any]) -> FitResult:
         raise NotImplementedError
 
-    def forward(self, x: np.ndarray, params: Mapping[str, Any]) -> np.ndarray:
+    # ``forward`` and ``inverse`` take an optional ``out`` array of the same shape; the
+    # methods that map in place (passes_nonfinite) write into it, the others may ignore it.
+    # Always use the returned array.
+    def forward(
+        self, x: np.ndarray, params: Mapping[str, Any], out: np.ndarray | None = None
+    ) -> np.ndarray:
         raise NotImplementedError
 
-    def inverse(self, y: np.ndarray, params: Mapping[str, Any]) -> np.ndarray:
+    def inverse(
+        self, y: np.ndarray, params: Mapping[str, Any], out: np.ndarray | None = None
+    ) -> np.ndarray:
         raise NotImplementedError
+
+    #: True when ``fit`` may be given NaN among the values and leaves them out itself
+    #: (the plan then need not copy the finite values out first).
+    fit_ignores_nan: bool = False
+
+    #: True when ``forward`` and ``inverse`` already keep NaN as NaN and pass infinities
+    #: through unchanged (the affine methods with a positive scale), so that the whole
+    #: array can be mapped in one go without masking.
+    passes_nonfinite: bool = False
+
+    def forward_all(
+        self, x: np.ndarray, params: Mapping[str, Any], out: np.ndarray | None = None
+    ) -> np.ndarray:
+        """``forward`` on any float array: NaN stays NaN, infinities pass through unchanged."""
+        return _through_nonfinite(x, self.forward, params, self.passes_nonfinite, out)
+
+    def inverse_all(
+        self, y: np.ndarray, params: Mapping[str, Any], out: np.ndarray | None = None
+    ) -> np.ndarray:
+        """``inverse`` on any float array: NaN stays NaN, infinities pass through unchanged."""
+        return _through_nonfinite(y, self.inverse, params, self.passes_nonfinite, out)
+
+
+def _through_nonfinite(x, func, params, passes_nonfinite: bool, out=None) -> np.ndarray:
+    x = np.asarray(x, dtype=np.float64)
+    if passes_nonfinite:
+        with np.errstate(all="ignore"):
+            return np.asarray(func(x, params, out=out), dtype=np.float64)
+    with np.errstate(all="ignore"):
+        out = np.asarray(func(x, params), dtype=np.float64)
+    if out is x or np.may_share_memory(out, x):
+        out = out.copy()
+    nonfinite = ~np.isfinite(x)
+    if nonfinite.any():
+        np.copyto(out, x, where=nonfinite)
+    return out
+
+
+def _finite_range(x: np.ndarray) -> tuple[float, float]:
+    """min and max, NaN left out (np.fmin/np.fmax skip NaN without copying)."""
+    return float(np.fmin.reduce(x)), float(np.fmax.reduce(x))
+
+
+def _largest_size(x: np.ndarray) -> tuple[float, tuple[float, float]]:
+    """max |x| with NaN left out, and the (min, max) it came from."""
+    lo, hi = _finite_range(x)
+    return max(abs(lo), abs(hi)), (lo, hi)
+
+
+def _keep_nonfinite(x: np.ndarray, value: float, out: np.ndarray | None = None) -> np.ndarray:
+    """``value`` where ``x`` is finite; NaN and infinities of ``x`` kept as they are."""
+    result = np.where(np.isfinite(x), value, x)
+    if out is None:
+        return result
+    out[...] = result
+    return out
+
+
+def _begin(x, out: np.ndarray | None) -> tuple[np.ndarray, np.ndarray]:
+    """``x`` as float64 and the array to write the result into (``out`` or a new one)."""
+    x = np.asarray(x, dtype=np.float64)
+    return x, (np.empty_like(x) if out is None else out)
 
 
 class LeaveAsIs(Method):
@@ -123,12 +200,15 @@ class LeaveAsIs(Method):
     summary = "Keeps the values exactly as they are."
     when_to_use = "For columns the model should see in their own units, and for codes."
     inverse_formula = "x = y"
+    passes_nonfinite = True
 
     def fit(self, x, options):
         return FitResult({})
 
-    def forward(self, x, params):
-        return np.array(x, dtype=np.float64, copy=True)
+    def forward(self, x, params, out=None):
+        x, out = _begin(x, out)
+        np.copyto(out, x)
+        return out
 
     inverse = forward
 
@@ -150,24 +230,59 @@ class MinMax(Method):
         if not options["low"] < options["high"]:
             raise OptionError("minmax needs low < high")
 
+    passes_nonfinite = True
+    fit_ignores_nan = True
+
     def fit(self, x, options):
-        lo, hi = float(np.min(x)), float(np.max(x))
+        lo, hi = _finite_range(x)
         warnings = []
         if lo == hi:
             warnings.append("all values are the same, so every value becomes 'low'")
+        if not math.isfinite(options["high"] - options["low"]):
+            raise FitError("the target range high - low is too wide for floating-point numbers")
         return FitResult(
-            {"min": lo, "max": hi, "low": options["low"], "high": options["high"]}, warnings
+            {"min": lo, "max": hi, "low": options["low"], "high": options["high"]},
+            warnings,
+            data_range=(lo, hi),
         )
 
-    def forward(self, x, params):
-        span = params["max"] - params["min"]
-        if span == 0:
-            return np.where(np.isnan(x), np.nan, params["low"])
-        return (x - params["min"]) * ((params["high"] - params["low"]) / span) + params["low"]
+    def forward(self, x, params, out=None):
+        # (x - min) / (max - min) * (high - low) + low, in this order (the design's formula):
+        # dividing first keeps tiny and huge spans in range, where (high-low)/span would not.
+        lo, hi, low, high = params["min"], params["max"], params["low"], params["high"]
+        x, out = _begin(x, out)
+        if lo == hi:
+            return _keep_nonfinite(x, low, out)
+        span = hi - lo
+        if math.isfinite(span):
+            np.subtract(x, lo, out=out)
+            out /= span
+        else:
+            # The data span more than the largest float: work on halves (exact) instead.
+            np.multiply(x, 0.5, out=out)
+            out -= lo * 0.5
+            out /= hi * 0.5 - lo * 0.5
+        if high - low != 1.0:
+            out *= high - low
+        if low != 0.0:
+            out += low
+        return out
 
-    def inverse(self, y, params):
-        span = params["max"] - params["min"]
-        return (y - params["low"]) * (span / (params["high"] - params["low"])) + params["min"]
+    def inverse(self, y, params, out=None):
+        lo, hi, low, high = params["min"], params["max"], params["low"], params["high"]
+        y, out = _begin(y, out)
+        np.subtract(y, low, out=out)
+        if high - low != 1.0:
+            out /= high - low
+        span = hi - lo
+        if math.isfinite(span):
+            out *= span
+            out += lo
+        else:
+            out *= hi * 0.5 - lo * 0.5
+            out += lo * 0.5
+            out *= 2.0
+        return out
 
 
 class ZScore(Method):
@@ -185,10 +300,19 @@ class ZScore(Method):
     )
     inverse_formula = "x = y * sd + mean"
 
+    passes_nonfinite = True
+
     def fit(self, x, options):
         ddof = 1 if options["sd"] == "sample" else 0
-        m = numerics.mean(x)
-        s = numerics.sd(x, ddof=ddof, center=m)
+        lo, hi = float(np.min(x)), float(np.max(x))
+        if lo == hi:
+            # Exactly constant: the mean is that value and the spread exactly 0 (rounding
+            # in the sums must not turn it into a tiny positive sd).
+            m, s = float(x[0]), 0.0
+        else:
+            m, s = numerics.mean_sd(x, ddof=ddof)
+        if math.isinf(s):
+            raise FitError("the values are too far apart to measure their spread in floating point")
         warnings = []
         if not s > 0:
             if x.size - ddof <= 0:
@@ -196,15 +320,21 @@ class ZScore(Method):
             else:
                 warnings.append("all values are the same, so every value becomes 0")
             s = 0.0
-        return FitResult({"mean": m, "sd": s, "ddof": ddof}, warnings)
+        return FitResult({"mean": m, "sd": s, "ddof": ddof}, warnings, data_range=(lo, hi))
 
-    def forward(self, x, params):
+    def forward(self, x, params, out=None):
+        x, out = _begin(x, out)
         if params["sd"] == 0:
-            return np.where(np.isnan(x), np.nan, 0.0)
-        return (x - params["mean"]) / params["sd"]
+            return _keep_nonfinite(x, 0.0, out)
+        np.subtract(x, params["mean"], out=out)
+        out /= params["sd"]
+        return out
 
-    def inverse(self, y, params):
-        return y * params["sd"] + params["mean"]
+    def inverse(self, y, params, out=None):
+        y, out = _begin(y, out)
+        np.multiply(y, params["sd"], out=out)
+        out += params["mean"]
+        return out
 
 
 class DecimalScaling(Method):
@@ -214,23 +344,49 @@ class DecimalScaling(Method):
     when_to_use = "When you want values below 1 in size while keeping them easy to read back."
     inverse_formula = "x = y * 10^j"
 
+    passes_nonfinite = True
+    fit_ignores_nan = True
+
     def fit(self, x, options):
-        biggest = float(np.max(np.abs(x)))
+        biggest, data_range = _largest_size(x)
         if biggest == 0:
-            return FitResult({"j": 0}, ["all values are zero, so nothing is moved (j = 0)"])
-        # Smallest integer j with max|x| / 10^j < 1 (Han, Kamber and Pei, 3rd ed., 3.5.2).
+            return FitResult(
+                {"j": 0}, ["all values are zero, so nothing is moved (j = 0)"], data_range
+            )
+        # Smallest integer j with max|x| / 10^j < 1 (Han, Kamber and Pei, 3rd ed., 3.5.2),
+        # checked with the same floating-point operation that forward uses.
         j = math.floor(math.log10(biggest)) + 1
-        while biggest / 10.0**j >= 1:
-            j += 1
-        while biggest / 10.0 ** (j - 1) < 1:
-            j -= 1
-        return FitResult({"j": int(j)})
+        lowest, highest = -_MAX_POW10 + 1, _MAX_POW10
+        if lowest <= j <= highest:
+            while j < highest and _shift_decimal(biggest, j) >= 1:
+                j += 1
+            while j > lowest and _shift_decimal(biggest, j - 1) < 1:
+                j -= 1
+        if not (lowest <= j <= highest and _shift_decimal(biggest, j) < 1):
+            raise FitError(
+                f"the largest size, {biggest!r}, is too close to the limits of floating-point "
+                "numbers for decimal scaling; choose max-abs instead"
+            )
+        return FitResult({"j": int(j)}, data_range=data_range)
 
-    def forward(self, x, params):
-        return x / 10.0 ** params["j"]
+    def forward(self, x, params, out=None):
+        x, out = _begin(x, out)
+        return _shift_decimal(x, params["j"], out)
 
-    def inverse(self, y, params):
-        return y * 10.0 ** params["j"]
+    def inverse(self, y, params, out=None):
+        y, out = _begin(y, out)
+        return _shift_decimal(y, -params["j"], out)
+
+
+_MAX_POW10 = 308  # 10.0**308 is the largest power of ten a float holds
+
+
+def _shift_decimal(x, j: int, out=None):
+    """``x / 10**j`` with one rounding: 10**k is exact in floating point for k <= 22, so
+    dividing (j > 0) or multiplying (j < 0) by it is correctly rounded there."""
+    if j >= 0:
+        return np.divide(x, 10.0**j, out=out)
+    return np.multiply(x, 10.0 ** (-j), out=out)
 
 
 class Robust(Method):
@@ -249,6 +405,17 @@ class Robust(Method):
                 "the middle half of the values is a single value (IQR 0); dividing by 1 instead"
             )
             scale = 1.0
+        else:
+            lo, hi = _finite_range(x)
+            with np.errstate(over="ignore"):
+                widest = max(median - lo, hi - median) / scale
+            if not math.isfinite(widest):
+                warnings.append(
+                    f"the middle half of the values is so narrow (IQR {scale!r}) that the "
+                    "other values would scale beyond the range of floating-point numbers; "
+                    "dividing by 1 instead"
+                )
+                scale = 1.0
         return FitResult(
             {
                 "median": median,
@@ -260,11 +427,19 @@ class Robust(Method):
             warnings,
         )
 
-    def forward(self, x, params):
-        return (x - params["median"]) / params["scale"]
+    passes_nonfinite = True
 
-    def inverse(self, y, params):
-        return y * params["scale"] + params["median"]
+    def forward(self, x, params, out=None):
+        x, out = _begin(x, out)
+        np.subtract(x, params["median"], out=out)
+        out /= params["scale"]
+        return out
+
+    def inverse(self, y, params, out=None):
+        y, out = _begin(y, out)
+        np.multiply(y, params["scale"], out=out)
+        out += params["median"]
+        return out
 
 
 class MaxAbs(Method):
@@ -274,17 +449,25 @@ class MaxAbs(Method):
     when_to_use = "For columns with many zeros or meaningful signs: zeros stay zero."
     inverse_formula = "x = y * maxabs"
 
+    fit_ignores_nan = True
+
     def fit(self, x, options):
-        biggest = float(np.max(np.abs(x)))
+        biggest, data_range = _largest_size(x)
         if biggest == 0:
-            return FitResult({"maxabs": 1.0}, ["all values are zero; dividing by 1 instead"])
-        return FitResult({"maxabs": biggest})
+            return FitResult(
+                {"maxabs": 1.0}, ["all values are zero; dividing by 1 instead"], data_range
+            )
+        return FitResult({"maxabs": biggest}, data_range=data_range)
 
-    def forward(self, x, params):
-        return x / params["maxabs"]
+    passes_nonfinite = True
 
-    def inverse(self, y, params):
-        return y * params["maxabs"]
+    def forward(self, x, params, out=None):
+        x, out = _begin(x, out)
+        return np.divide(x, params["maxabs"], out=out)
+
+    def inverse(self, y, params, out=None):
+        y, out = _begin(y, out)
+        return np.multiply(y, params["maxabs"], out=out)
 
 
 _LOG = {
@@ -314,15 +497,17 @@ class Logarithm(Method):
             )
         return FitResult({"base": options["base"], "shift": shift}, warnings)
 
-    def forward(self, x, params):
+    def forward(self, x, params, out=None):  # out: see Method.forward (not used here)
         log, _ = _LOG[params["base"]]
-        shifted = x + params["shift"]
+        x = np.asarray(x, dtype=np.float64)
+        shifted = x + params["shift"] if params["shift"] else x
         with np.errstate(invalid="ignore", divide="ignore"):
-            out = log(shifted)
-        out[~(shifted > 0)] = np.nan  # log of 0 or below has no real value
+            out = log(shifted)  # NaN below 0
+        if out.size and np.fmin.reduce(out) == -np.inf:
+            out[out == -np.inf] = np.nan  # log(0) has no real value either
         return out
 
-    def inverse(self, y, params):
+    def inverse(self, y, params, out=None):  # out: see Method.forward (not used here)
         _, exp = _LOG[params["base"]]
         with np.errstate(over="ignore"):
             return exp(y) - params["shift"]
@@ -350,6 +535,32 @@ class _PowerMethod(Method):
                 s = 1.0
             params.update({"mean": m, "sd": s, "ddof": 1})
 
+    def _check_reversible(self, x: np.ndarray, params: dict, warnings: list) -> None:
+        """Warn when the fitted transform cannot be turned back to 1e-9 of the values.
+
+        An extreme lambda squeezes the values against the transform's asymptote, where
+        distinct values become nearly equal and their digits are lost. Checked on the
+        fitted values themselves (at most about 10,000 of them, the extremes included).
+        """
+        sample = (
+            x
+            if x.size <= 10_000
+            else np.concatenate([x[:: x.size // 10_000], [np.min(x), np.max(x)]])
+        )
+        with np.errstate(all="ignore"):
+            back = self.inverse(self.forward(sample, params), params)
+            err = float(np.max(np.abs(back - sample))) / float(np.max(np.abs(sample)))
+        if not err <= 1e-9:
+            lost = (
+                "some values cannot be turned back at all"
+                if not np.isfinite(err)
+                else (
+                    f"turning scaled values back is only accurate to about {err:.0e} of the "
+                    "largest value"
+                )
+            )
+            warnings.append(f"lambda {params['lambda']:.4g} is extreme for these values: {lost}")
+
     def _scale(self, t: np.ndarray, params) -> np.ndarray:
         if params.get("standardize"):
             return (t - params["mean"]) / params["sd"]
@@ -376,16 +587,22 @@ class BoxCox(_PowerMethod):
             )
         if np.min(x) == np.max(x):
             raise FitError("all values are the same, so Box-Cox cannot be fitted")
-        lam = power.boxcox_lambda(x)
+        lam, constrained = power.boxcox_lambda(x, report_constrained=True)
         params: dict[str, Any] = {"lambda": lam}
         warnings: list[str] = []
+        if constrained:
+            warnings.append(
+                f"the best lambda would push values beyond what floating point can hold; "
+                f"lambda {lam!r} was used instead (as scipy does)"
+            )
         self._standardize(power.boxcox_forward(x, lam), options, params, warnings)
+        self._check_reversible(x, params, warnings)
         return FitResult(params, warnings)
 
-    def forward(self, x, params):
+    def forward(self, x, params, out=None):  # out: see Method.forward (not used here)
         return self._scale(power.boxcox_forward(x, params["lambda"]), params)
 
-    def inverse(self, y, params):
+    def inverse(self, y, params, out=None):  # out: see Method.forward (not used here)
         return power.boxcox_inverse(self._unscale(y, params), params["lambda"])
 
 
@@ -407,12 +624,13 @@ class YeoJohnson(_PowerMethod):
         params: dict[str, Any] = {"lambda": lam}
         warnings: list[str] = []
         self._standardize(power.yeojohnson_forward(x, lam), options, params, warnings)
+        self._check_reversible(x, params, warnings)
         return FitResult(params, warnings)
 
-    def forward(self, x, params):
+    def forward(self, x, params, out=None):  # out: see Method.forward (not used here)
         return self._scale(power.yeojohnson_forward(x, params["lambda"]), params)
 
-    def inverse(self, y, params):
+    def inverse(self, y, params, out=None):  # out: see Method.forward (not used here)
         return power.yeojohnson_inverse(self._unscale(y, params), params["lambda"])
 
 

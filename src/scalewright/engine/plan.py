@@ -66,12 +66,19 @@ class FittedColumn:
     def method_obj(self) -> Method:
         return get_method(self.method)
 
-    def forward(self, x: np.ndarray, params: ParamSet | None = None) -> np.ndarray:
-        """Scale ``x`` with the pooled (or the given) parameters; NaN and infinities pass."""
-        return _through_finite(x, self.method_obj.forward, (params or self.pooled).params)
+    def forward(
+        self, x: np.ndarray, params: ParamSet | None = None, out: np.ndarray | None = None
+    ) -> np.ndarray:
+        """Scale ``x`` with the pooled (or the given) parameters; NaN and infinities pass.
 
-    def inverse(self, y: np.ndarray, params: ParamSet | None = None) -> np.ndarray:
-        return _through_finite(y, self.method_obj.inverse, (params or self.pooled).params)
+        ``out`` (optional) is an array the result may be written into; use the returned one.
+        """
+        return self.method_obj.forward_all(x, (params or self.pooled).params, out)
+
+    def inverse(
+        self, y: np.ndarray, params: ParamSet | None = None, out: np.ndarray | None = None
+    ) -> np.ndarray:
+        return self.method_obj.inverse_all(y, (params or self.pooled).params, out)
 
 
 @dataclass
@@ -124,10 +131,51 @@ def value_key(value: Any) -> str:
     return str(value).strip()
 
 
-def _keys(series: pd.Series) -> tuple[np.ndarray, list[str]]:
-    """Factorize ``series`` into integer codes and the canonical key of each code."""
+def group_codes(series: pd.Series) -> tuple[np.ndarray, list[str]]:
+    """Factorize ``series`` into integer codes and the canonical key of each code.
+
+    Cells whose keys are the same (3 and 3.0 in a mixed column, 'A' and ' A') share one
+    code, so that they form one group; missing cells have code -1. This is the
+    ``group_keys`` argument of ``fit_column``.
+    """
     codes, uniques = pd.factorize(series, use_na_sentinel=True)
-    return codes, [value_key(u) for u in uniques]
+    return merge_group_keys(codes, [value_key(u) for u in uniques])
+
+
+_keys = group_codes  # the older private name
+
+
+def merge_group_keys(codes: np.ndarray, raw_keys: Sequence[str]) -> tuple[np.ndarray, list[str]]:
+    """Give codes whose keys are equal one code (and blank keys the code -1)."""
+    keys: list[str] = []
+    index: dict[str, int] = {}
+    remap = np.empty(len(raw_keys) + 1, dtype=np.intp)
+    remap[-1] = -1  # code -1 (missing) indexes the last slot
+    for i, key in enumerate(raw_keys):
+        if key == "":
+            remap[i] = -1
+            continue
+        if key not in index:
+            index[key] = len(keys)
+            keys.append(key)
+        remap[i] = index[key]
+    if len(keys) == len(raw_keys):
+        return np.asarray(codes), keys
+    return remap[np.asarray(codes)], keys
+
+
+def _wanted_key(series: pd.Series, wanted: Any) -> str:
+    """The key of a value typed by the user, read as a number when the column is numeric."""
+    if (
+        isinstance(wanted, str)
+        and pd.api.types.is_numeric_dtype(series.dtype)
+        and not pd.api.types.is_bool_dtype(series.dtype)
+    ):
+        try:
+            return value_key(float(wanted.strip()))
+        except ValueError:
+            pass
+    return value_key(wanted)
 
 
 def column_values(data: pd.DataFrame, column: str) -> np.ndarray:
@@ -149,40 +197,48 @@ def fit_rows(data: pd.DataFrame, settings: FitSettings) -> np.ndarray:
     column, wanted = settings.fit_where
     if column not in data.columns:
         raise ColumnError(column, "the column named for choosing fit rows is not in the table")
-    codes, keys = _keys(data[column])
-    matching = [i for i, k in enumerate(keys) if k == value_key(wanted)]
-    mask = np.isin(codes, matching)
+    series = data[column]
+    if isinstance(series, pd.DataFrame):
+        raise ColumnError(column, "the name is used by more than one column")
+    codes, keys = _keys(series)
+    key = _wanted_key(series, wanted)
+    mask = codes == keys.index(key) if key in keys else np.zeros(len(data), dtype=bool)
     if not mask.any():
         raise ColumnError(column, f"no row has the value '{wanted}', so there is nothing to fit on")
     return mask
 
 
-def _through_finite(x: np.ndarray, func, params: Mapping[str, Any]) -> np.ndarray:
-    """Apply ``func`` to the finite values only; NaN stays NaN and infinities pass through."""
-    x = np.asarray(x, dtype=np.float64)
-    finite = np.isfinite(x)
-    if finite.all():
-        return np.asarray(func(x, params), dtype=np.float64)
-    out = x.copy()
-    out[finite] = func(x[finite], params)
-    return out
+def _count(test, x: np.ndarray, scratch: np.ndarray | None) -> int:
+    """How many values pass ``test`` (np.isnan, np.isinf, ...), into a reused bool buffer."""
+    if scratch is None or scratch.size != x.size:
+        return int(np.count_nonzero(test(x)))
+    return int(np.count_nonzero(test(x, out=scratch)))
 
 
 # --------------------------------------------------------------------------- fitting
 
 
 def _fit_values(
-    method: Method, column: str, x: np.ndarray, options: dict, label: str = ""
+    method: Method,
+    column: str,
+    x: np.ndarray,
+    options: dict,
+    label: str = "",
+    n: int | None = None,
 ) -> tuple[ParamSet, list[str]]:
+    """Fit ``x`` (finite values; or with NaN among them when ``n``, the number of finite
+    values, is given, for methods whose fit ignores NaN)."""
     where = f" (group '{label}')" if label else ""
-    if x.size == 0:
+    n = x.size if n is None else n
+    if n == 0:
         raise ColumnError(column, f"has no numbers to fit{where}")
     try:
         result: FitResult = method.fit(x, options)
     except ScalewrightError as err:
         raise ColumnError(column, f"{err}{where}") from None
     params = dict(result)
-    ps = ParamSet(params, int(x.size), float(np.min(x)), float(np.max(x)))
+    lo, hi = result.data_range or (float(np.fmin.reduce(x)), float(np.fmax.reduce(x)))
+    ps = ParamSet(params, int(n), lo, hi)
     return ps, [f"{w}{where}" for w in result.warnings]
 
 
@@ -203,15 +259,27 @@ def fit_column(
     choice = choice.normalized()
     method = get_method(choice.method)
     x = np.asarray(values, dtype=np.float64)
-    rows = np.ones(x.size, dtype=bool) if fit_mask is None else fit_mask
     finite = np.isfinite(x)
-    n_missing = int(np.count_nonzero(np.isnan(x) & rows))
-    n_infinite = int(np.count_nonzero(np.isinf(x) & rows))
-    use = rows & finite
-    pooled, warnings = _fit_values(method, column, x[use], choice.options)
+    if fit_mask is None:
+        use = finite
+        n_rows = x.size
+        n_missing = _count(np.isnan, x, None)
+    else:
+        use = finite & fit_mask
+        n_rows = int(np.count_nonzero(fit_mask))
+        n_missing = int(np.count_nonzero(np.isnan(x) & fit_mask))
+    n_finite = int(np.count_nonzero(use))
+    n_infinite = n_rows - n_finite - n_missing
+    if n_finite == x.size:
+        fit_values = x
+    elif method.fit_ignores_nan and fit_mask is None and n_infinite == 0:
+        fit_values = x  # only NaN to leave out, and this fit skips them: no copy needed
+    else:
+        fit_values = x[use]
+    pooled, warnings = _fit_values(method, column, fit_values, choice.options, n=n_finite)
     groups: dict[str, ParamSet] = {}
     if group_keys is not None and choice.method != "none":
-        codes, keys = group_keys
+        codes, keys = merge_group_keys(*group_keys)
         for code, key in enumerate(keys):
             in_group = use & (codes == code)
             if not in_group.any():
@@ -250,6 +318,7 @@ def fit(
         if settings.group_by not in data.columns:
             raise ColumnError(settings.group_by, "the grouping column is not in the table")
         group_keys = _keys(data[settings.group_by])
+    fit_mask = None if settings.fit_where is None else mask  # None: every row, no masking
     fitted: dict[str, FittedColumn] = {}
     for column, choice in choices.items():
         if get_method(choice.method).id == "none":
@@ -257,7 +326,11 @@ def fit(
         if column == settings.group_by:
             raise ColumnError(column, "is the grouping column, so it cannot be scaled too")
         fitted[column] = fit_column(
-            column_values(data, column), choice, column=column, fit_mask=mask, group_keys=group_keys
+            column_values(data, column),
+            choice,
+            column=column,
+            fit_mask=fit_mask,
+            group_keys=group_keys,
         )
     return FittedPlan(fitted, settings, int(np.count_nonzero(mask)))
 
@@ -304,38 +377,70 @@ def _run(
     restoring: bool,
     clip: bool = False,
 ) -> tuple[pd.DataFrame, list[ColumnReport]]:
-    out = data.copy()
+    new_columns: dict[str, np.ndarray] = {}
     reports = []
-    for target, source in pairs:
+    scratch = np.empty(len(data), dtype=bool)  # reused by every count below
+    # One allocation for every new column: one large block is mapped with huge pages by
+    # the operating system, far fewer page faults than one array per column. Rows that a
+    # method does not write into are never touched, so they cost no memory.
+    block = np.empty((len(pairs), len(data)))
+    for i, (target, source) in enumerate(pairs):
         fc = plan.columns[source]
         x = column_values(data, target)
-        report = ColumnReport(target, source, n_values=int(np.count_nonzero(~np.isnan(x))))
-        report.n_infinite = int(np.count_nonzero(np.isinf(x)))
-        result = np.full(x.shape, np.nan)
+        n_missing = _count(np.isnan, x, scratch)
+        report = ColumnReport(target, source, n_values=x.size - n_missing)
+        report.n_infinite = _count(np.isinf, x, scratch)
+        result = None
         for ps, rows in _param_sets_by_row(fc, data, plan.settings.group_by, report):
             part = x if rows is None else x[rows]
             if not restoring:
-                finite = np.isfinite(part)  # infinities pass through, neither counted nor clipped
-                below, above = finite & (part < ps.min), finite & (part > ps.max)
-                report.n_below += int(np.count_nonzero(below))
-                report.n_above += int(np.count_nonzero(above))
-                if clip:
+                # Infinities pass through: neither counted as outside nor clipped.
+                # (NaN compares False; -inf < min and inf > max are taken off again.)
+                # fmin/fmax skip NaN: two read-only passes settle the common case where
+                # nothing lies outside the fitted range.
+                n_below = n_above = 0
+                if part.size and not np.fmin.reduce(part) >= ps.min:
+                    n_below = int(np.count_nonzero(part < ps.min))
+                if part.size and not np.fmax.reduce(part) <= ps.max:
+                    n_above = int(np.count_nonzero(part > ps.max))
+                if report.n_infinite:
+                    n_below -= int(np.count_nonzero(part == -np.inf))
+                    n_above -= int(np.count_nonzero(part == np.inf))
+                report.n_below += n_below
+                report.n_above += n_above
+                if clip and n_below + n_above:
+                    finite = np.isfinite(part)
                     part = np.where(finite, np.clip(part, ps.min, ps.max), part)
-                    report.n_clipped += int(np.count_nonzero(below | above))
-                mapped = fc.forward(part, ps)
+                    report.n_clipped += n_below + n_above
+                mapped = fc.forward(part, ps, out=block[i] if rows is None else None)
             else:
-                mapped = fc.inverse(part, ps)
+                mapped = fc.inverse(part, ps, out=block[i] if rows is None else None)
             if rows is None:
                 result = mapped
             else:
+                if result is None:
+                    result = block[i]
+                    result.fill(np.nan)
                 result[rows] = mapped
-        undefined = np.isnan(result) & ~np.isnan(x)
-        report.n_undefined = int(np.count_nonzero(undefined))
+        if result is None:
+            result = block[i]
+            result.fill(np.nan)
+        # NaN and infinities of the input come through unchanged, so any extra NaN is a
+        # value the transform cannot map, and any extra infinity one that overflowed.
+        n_undefined = 0
+        if x.size - _count(np.isfinite, result, scratch) != n_missing + report.n_infinite:
+            n_undefined = _count(np.isnan, result, scratch) - n_missing
+            n_overflow = _count(np.isinf, result, scratch) - report.n_infinite
+            if n_overflow:
+                result[np.isinf(result) & np.isfinite(x)] = np.nan
+                n_undefined += n_overflow
+        report.n_undefined = n_undefined
         if report.n_undefined:
             what = "original units" if restoring else "scaled units"
             report.warnings.append(
                 f"{report.n_undefined} values have no value in {what} for {fc.method} "
-                "with these parameters and were left blank"
+                "with these parameters (out of its domain or beyond the range of "
+                "floating-point numbers) and were left blank"
             )
         if report.n_infinite:
             report.warnings.append(
@@ -348,9 +453,32 @@ def _run(
                 if not fc.groups
                 else f"{report.n_below} values below and {report.n_above} above their group's fitted range"
             )
-        out[target] = result
+        new_columns[target] = result
         reports.append(report)
-    return out, reports
+    return _with_columns(data, new_columns), reports
+
+
+def _with_columns(data: pd.DataFrame, new_columns: Mapping[str, np.ndarray]) -> pd.DataFrame:
+    """``data`` with some columns replaced by new float arrays, without copying anything.
+
+    ``df[name] = array`` copies the array (pandas copy-on-write); building the frame from
+    the columns instead shares the new arrays and, through copy-on-write, the untouched
+    columns of ``data`` (which therefore can never be changed through the result).
+    Column order, duplicate names, the index and the other columns' types are kept.
+    """
+    if not new_columns:
+        return data.copy(deep=False)
+    parts: dict[int, Any] = {}
+    positions = {data.columns.get_loc(name): name for name in new_columns}
+    for i in range(data.shape[1]):
+        if i in positions:
+            parts[i] = pd.Series(new_columns[positions[i]], index=data.index, copy=False)
+        else:
+            parts[i] = data.iloc[:, i]
+    out = pd.DataFrame(parts, index=data.index, copy=False)
+    out.columns = data.columns
+    out.attrs = dict(data.attrs)
+    return out
 
 
 def apply(

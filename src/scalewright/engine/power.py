@@ -15,48 +15,99 @@ same bracket and tolerance scipy uses, so the lambdas agree.
 from __future__ import annotations
 
 import numpy as np
-from scipy import optimize
+from scipy import optimize, special
 
 _BRENT_TOL = 1.48e-8  # scipy.optimize.brent's default xtol
 
 
-def _log_var_expm1(lam: float, logs: np.ndarray, center: float) -> float:
-    """log(var(expm1(lam * (logs - center)) / lam)), accurate also for lambda near 0."""
-    if lam == 0.0:
-        d = logs - center
-    else:
-        d = np.expm1(lam * (logs - center))
-        d /= lam
-    v = float(np.var(d))
-    return np.log(v) if v > 0 and np.isfinite(v) else -np.inf
-
-
 class BoxCoxLikelihood:
-    """Negative profile log-likelihood of Box-Cox lambda on precomputed logarithms."""
+    """Negative profile log-likelihood of Box-Cox lambda on precomputed logarithms.
+
+    With L = log(x), c = mean(L) and v(lambda) = var(expm1(lambda * (L - c)) / lambda),
+    var(y_lambda) = exp(2 * lambda * c) * v(lambda), so that
+
+        llf(lambda) = (lambda - 1) * sum(L) - n/2 * (2 * lambda * c + log v(lambda))
+                    = lambda * sum(L - c) - sum(L) - n/2 * log v(lambda).
+
+    The second form has no large terms that cancel (sum(L - c) is about 0), so the
+    likelihood is evaluated to nearly full precision even where it is very flat, which
+    keeps the maximum where it truly is.
+    """
 
     def __init__(self, x: np.ndarray) -> None:
-        self.logs = np.log(x)
+        logs = np.log(x)
         self.n = x.size
-        self.sum_logs = float(np.sum(self.logs))
-        self.center = float(np.mean(self.logs))
+        self.sum_logs = float(np.sum(logs))
+        self.center = float(np.mean(logs))
+        logs -= self.center  # centred logarithms, computed once
+        self.centered = logs
+        self.sum_centered = float(np.sum(logs))
+        self._buffer = np.empty_like(logs)
+
+    def _log_var(self, lam: float) -> float:
+        """log(var(expm1(lam * (L - c)) / lam)), accurate also for lambda near 0."""
+        if lam == 0.0:
+            d = self.centered
+        else:
+            d = self._buffer
+            np.multiply(self.centered, lam, out=d)
+            np.expm1(d, out=d)
+        # population variance of d without a full-size temporary: mean, subtract, squares
+        m = float(np.mean(d))
+        centred = np.subtract(d, m, out=self._buffer)
+        v = float(np.einsum("i,i->", centred, centred)) / self.n
+        if lam != 0.0:
+            v /= lam * lam
+        return np.log(v) if v > 0 and np.isfinite(v) else -np.inf
 
     def llf(self, lam: float) -> float:
-        # var(y) = exp(2*lam*c) * var(expm1(lam*(L - c))/lam): shifting by c keeps exp in range.
-        log_var = 2.0 * lam * self.center + _log_var_expm1(lam, self.logs, self.center)
+        with np.errstate(over="ignore", invalid="ignore"):
+            log_var = self._log_var(lam)
         if not np.isfinite(log_var):
             return -np.inf
-        return (lam - 1.0) * self.sum_logs - 0.5 * self.n * log_var
+        return lam * self.sum_centered - self.sum_logs - 0.5 * self.n * log_var
 
     def neg_llf(self, lam: float) -> float:
         value = self.llf(lam)
         return np.inf if not np.isfinite(value) else -value
 
 
-def boxcox_lambda(x: np.ndarray) -> float:
-    """Maximum-likelihood Box-Cox lambda for strictly positive finite ``x``."""
+#: scipy.stats.boxcox_normmax's default ``ymax``: the largest float over a safety factor
+#: of 10000; lambdas that would send a transformed value beyond it are constrained.
+BOXCOX_YMAX = float(np.finfo(np.float64).max) / 10000
+
+
+def boxcox_lambda(x: np.ndarray, report_constrained: bool = False):
+    """Maximum-likelihood Box-Cox lambda for strictly positive finite ``x``.
+
+    As in scipy.stats.boxcox_normmax (method "mle"), when the best lambda would send the
+    most extreme value beyond ``BOXCOX_YMAX`` in size, lambda is moved to the value that
+    sends it exactly there. With ``report_constrained`` the result is (lambda, constrained).
+    """
     like = BoxCoxLikelihood(x)
     # scipy.stats.boxcox_normmax(method="mle") uses optimize.brent with brack=(-2, 2).
-    return float(optimize.brent(like.neg_llf, brack=(-2.0, 2.0), tol=_BRENT_TOL))
+    with np.errstate(all="ignore"):  # brent's arithmetic on infinite llf values warns
+        lam = float(optimize.brent(like.neg_llf, brack=(-2.0, 2.0), tol=_BRENT_TOL))
+    constrained = False
+    xmax, xmin = float(np.max(x)), float(np.min(x))
+    if xmin >= 1:
+        extreme = xmax
+    elif xmax <= 1:
+        extreme = xmin
+    else:
+        extreme = xmax if _boxcox_scalar(xmax, lam) > abs(_boxcox_scalar(xmin, lam)) else xmin
+    if abs(_boxcox_scalar(extreme, lam)) > BOXCOX_YMAX:
+        y = BOXCOX_YMAX * np.sign(extreme - 1)
+        # Solve boxcox(extreme, lam) = y for lam with the Lambert W function (as scipy does).
+        w = special.lambertw(-(extreme ** (-1 / y)) * np.log(extreme) / y, k=-1)
+        lam = float(np.real(-w / np.log(extreme) - 1 / y))
+        constrained = True
+    return (lam, constrained) if report_constrained else lam
+
+
+def _boxcox_scalar(x: float, lam: float) -> float:
+    with np.errstate(over="ignore"):
+        return float(special.boxcox(x, lam))
 
 
 def boxcox_forward(x: np.ndarray, lam: float) -> np.ndarray:
@@ -118,9 +169,14 @@ def yeojohnson_lambda(x: np.ndarray) -> float:
     """Maximum-likelihood Yeo-Johnson lambda for finite ``x`` (any sign)."""
     if np.all(x == 0):
         return 1.0  # every lambda fits equally; scipy returns 1 as well
-    like = YeoJohnsonLikelihood(x)
     lb, ub = _yeojohnson_bounds(x)
-    return float(optimize.fminbound(like.neg_llf, lb, ub, xtol=_BRENT_TOL))
+    if not (np.isfinite(lb) and np.isfinite(ub)):
+        # log1p(20 * max|x|) is 0: the values are so close to 0 that every lambda gives
+        # the same transform to working precision (scipy's fitter raises here).
+        return 1.0
+    like = YeoJohnsonLikelihood(x)
+    with np.errstate(all="ignore"):
+        return float(optimize.fminbound(like.neg_llf, lb, ub, xtol=_BRENT_TOL))
 
 
 def _yeojohnson_bounds(x: np.ndarray) -> tuple[float, float]:
@@ -129,11 +185,14 @@ def _yeojohnson_bounds(x: np.ndarray) -> tuple[float, float]:
     The same bounds scipy.stats.yeojohnson_normmax uses (scipy PR 18852).
     """
     log1p_max_x = np.log1p(20 * np.max(np.abs(x)))
+    if log1p_max_x == 0:
+        return float("-inf"), float("inf")
     eps = np.finfo(np.float64)
     log_eps = np.log(eps.eps)
     log_tiny = (np.log(eps.tiny) - log_eps) / 2
     log_max = (np.log(eps.max) + log_eps) / 2
-    lb, ub = log_tiny / log1p_max_x, log_max / log1p_max_x
+    with np.errstate(over="ignore", divide="ignore"):
+        lb, ub = log_tiny / log1p_max_x, log_max / log1p_max_x
     if np.all(x < 0):
         lb, ub = 2 - ub, 2 - lb
     elif np.any(x < 0):

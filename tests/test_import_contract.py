@@ -1,0 +1,105 @@
+"""The layers below the window never need Qt (../shared/DESIGN.md, "Layers").
+
+``import scalewright.engine`` and ``import scalewright.io`` must work on a machine with no
+display and without PySide6: checked in a fresh interpreter where importing PySide6,
+shiboken6 or pyqtgraph raises ImportError, and by reading every import statement of the
+two packages' source.
+"""
+
+from __future__ import annotations
+
+import ast
+import subprocess
+import sys
+import textwrap
+from pathlib import Path
+
+import pytest
+
+SRC = Path(__file__).resolve().parents[1] / "src" / "scalewright"
+QT_NAMES = ("PySide6", "shiboken6", "pyqtgraph", "PyQt5", "PyQt6", "PySide2", "qtpy")
+
+BLOCKER = textwrap.dedent(
+    """
+    import importlib.abc, os, sys
+    os.environ.pop("QT_QPA_PLATFORM", None)
+    os.environ.pop("DISPLAY", None)
+    BLOCKED = {names!r}
+
+    class NoQt(importlib.abc.MetaPathFinder):
+        def find_spec(self, name, path=None, target=None):
+            if name.split(".")[0] in BLOCKED:
+                raise ImportError(f"{{name}} is blocked for this test")
+            return None
+
+    sys.meta_path.insert(0, NoQt())
+    import {module}
+    leaked = sorted(m for m in sys.modules if m.split(".")[0] in BLOCKED)
+    assert not leaked, leaked
+    print("ok")
+    """
+)
+
+
+def run_without_qt(module: str) -> subprocess.CompletedProcess:
+    code = BLOCKER.format(names=set(QT_NAMES), module=module)
+    return subprocess.run(
+        [sys.executable, "-c", code], capture_output=True, text=True, timeout=120, check=False
+    )
+
+
+def test_blocker_really_blocks():
+    # The check would prove nothing if the blocker let PySide6 through.
+    result = run_without_qt("PySide6")
+    assert result.returncode != 0 and "blocked" in result.stderr
+
+
+@pytest.mark.parametrize("module", ["scalewright.engine", "scalewright.io"])
+def test_imports_without_qt(module):
+    result = run_without_qt(module)
+    assert result.returncode == 0, result.stderr
+    assert result.stdout.strip() == "ok"
+
+
+def imported_names(path: Path) -> list[str]:
+    tree = ast.parse(path.read_text(encoding="utf-8"), filename=str(path))
+    names = []
+    for node in ast.walk(tree):
+        if isinstance(node, ast.Import):
+            names.extend(alias.name for alias in node.names)
+        elif isinstance(node, ast.ImportFrom) and node.module and node.level == 0:
+            names.append(node.module)
+        elif (
+            isinstance(node, ast.Call)
+            and getattr(node.func, "attr", getattr(node.func, "id", ""))
+            in ("import_module", "__import__")
+            and node.args
+            and isinstance(node.args[0], ast.Constant)
+        ):
+            names.append(str(node.args[0].value))
+    return names
+
+
+@pytest.mark.parametrize("package", ["engine", "io"])
+def test_no_qt_import_statement_in_source(package):
+    files = sorted((SRC / package).rglob("*.py"))
+    assert files, f"no source found under {SRC / package}"
+    offending = [
+        f"{path.relative_to(SRC)}: {name}"
+        for path in files
+        for name in imported_names(path)
+        if name.split(".")[0] in QT_NAMES
+    ]
+    assert offending == []
+
+
+def test_engine_does_not_import_upper_layers():
+    # engine knows nothing of files, the project format, the command line or the window
+    upper = ("scalewright.io", "scalewright.project", "scalewright.cli", "scalewright.gui")
+    for path in sorted((SRC / "engine").rglob("*.py")):
+        for name in imported_names(path):
+            assert not name.startswith(upper), f"{path.name} imports {name}"
+        tree = ast.parse(path.read_text(encoding="utf-8"))
+        for node in ast.walk(tree):
+            if isinstance(node, ast.ImportFrom) and node.level >= 2:
+                assert node.module in ("errors",), f"{path.name} imports ..{node.module}"
