@@ -16,7 +16,16 @@ from pathlib import Path
 import pandas as pd
 
 from . import __version__
-from .engine import ColumnChoice, ColumnReport, FitSettings, apply, fit, get_method, restore
+from .engine import (
+    ColumnChoice,
+    ColumnReport,
+    FitSettings,
+    FittedPlan,
+    apply,
+    fit,
+    get_method,
+    restore,
+)
 from .errors import ColumnError, ProjectError, ReadError, ScalewrightError, WriteError
 from .io import (
     SUPPORTED_WRITE,
@@ -78,12 +87,22 @@ def fit_project(
     table: Table,
     choices: Mapping[str, ColumnChoice],
     settings: FitSettings | None = None,
+    *,
+    plan: FittedPlan | None = None,
 ) -> Project:
-    """Fit ``choices`` on ``table`` and return the project that records it all."""
+    """Fit ``choices`` on ``table`` and return the project that records it all.
+
+    ``plan``, when given, holds parameters already fitted for exactly these choices (the
+    window keeps them, including saved parameters the user chose to keep after the data
+    file changed); they are recorded as they are instead of being fitted again.
+    """
     settings = settings or FitSettings()
     check_choices(table, choices)
     normalized = {label: choice.normalized() for label, choice in choices.items()}
-    plan = fit(table.data, normalized, settings)
+    if plan is None:
+        plan = fit(table.data, normalized, settings)
+    else:
+        _check_plan_matches(plan, normalized, settings)
     source = size = sha = None
     if table.source is not None and Path(table.source).is_file():
         source = Path(os.path.abspath(table.source))
@@ -103,6 +122,18 @@ def fit_project(
         modified=stamp,
         app_version=__version__,
     )
+
+
+def _check_plan_matches(
+    plan: FittedPlan, choices: Mapping[str, ColumnChoice], settings: FitSettings
+) -> None:
+    chosen = {label: c for label, c in choices.items() if c.method != "none"}
+    if plan.settings != settings or set(plan.columns) != set(chosen):
+        raise ScalewrightError("the fitted parameters do not match the choices; fit again")
+    for label, choice in chosen.items():
+        fc = plan.columns[label]
+        if (fc.method, dict(fc.options)) != (choice.method, dict(choice.options)):
+            raise ColumnError(label, "was fitted with another method or options; fit again")
 
 
 def _fitted(project: Project):

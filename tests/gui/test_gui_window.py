@@ -415,6 +415,37 @@ def test_reopening_a_project_whose_data_moved(qtbot, opened, tmp_path, wait_job)
     assert w.session.dirty  # the new place is worth saving
 
 
+@pytest.mark.parametrize("keep", [True, False])
+def test_reopening_a_project_whose_data_changed(qtbot, opened, tmp_path, wait_job, keep):
+    w = opened
+    data = tmp_path / "harvest.csv"
+    shutil.copy(HARVEST_2025, data)
+    w.load_data(data)
+    wait_job(w)
+    click_row(qtbot, w, "yield_kg")
+    choose_method(w, "zscore")
+    saved = w.session.fitted_column("yield_kg").pooled.params
+    project_path = tmp_path / "h.swproj"
+    assert w.save_project(project_path, wait=True)
+    # Next week the file has one more, very large, yield: its mean and sd move.
+    with data.open("a", encoding="utf-8") as f:
+        f.write("999999,Hilltop,Russet,2001-04-01,24,80.1,5000.0,900,13.1,4000,0,6.5,train\n")
+    asked = []
+    w.ask_keep_saved_parameters = lambda name: asked.append(name) or keep
+    w.open_project(project_path)
+    wait_job(w)
+    assert asked == ["harvest.csv"]
+    now = w.session.fitted_column("yield_kg").pooled.params
+    if keep:  # exactly the saved values, and saving again keeps them
+        assert now == saved
+        again = tmp_path / "again.swproj"
+        assert w.save_project(again, wait=True)
+        assert load_project(again).plan.columns["yield_kg"].pooled.params == saved
+    else:  # fitted again on the file as it is now
+        assert now["mean"] > saved["mean"]
+    assert "has changed" in w.last_message.text()
+
+
 def test_a_broken_project_file_is_refused_plainly(qtbot, opened, tmp_path):
     bad = tmp_path / "bad.swproj"
     bad.write_text('{"format": "something else"}', encoding="utf-8")

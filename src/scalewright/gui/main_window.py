@@ -498,6 +498,21 @@ class MainWindow(QMainWindow):
             return None
         return self.ask_open_path("Where is the data file?", DATA_FILTER)
 
+    def ask_keep_saved_parameters(self, data_name: str) -> bool:
+        """The data file changed since saving: keep the saved parameters, or fit again?"""
+        box = QMessageBox(self)
+        box.setIcon(QMessageBox.Icon.Question)
+        box.setText(f"{data_name} has changed since the project was saved.")
+        box.setInformativeText(
+            "Keep the saved parameters, so the data is scaled exactly as before, "
+            "or fit them again on the file as it is now?"
+        )
+        keep = box.addButton("Keep saved parameters", QMessageBox.ButtonRole.AcceptRole)
+        box.addButton("Fit again", QMessageBox.ButtonRole.RejectRole)
+        box.setDefaultButton(keep)
+        box.exec()
+        return box.clickedButton() is keep
+
     def open_project(self, path: str | Path, *, asked: bool = False):
         """Load a project and its data file; the choices are fitted again on that data."""
         if not asked and not self._may_discard():
@@ -519,12 +534,16 @@ class MainWindow(QMainWindow):
 
         def shown(table) -> None:
             missing = [c for c in project.choices if c not in table.data.columns]
+            keep = project.plan is not None and (
+                not check.changed or self.ask_keep_saved_parameters(source.name)
+            )
             try:
                 self.session.load_table(
                     table,
                     choices=project.choices,
                     settings=project.settings,
                     project_path=path,
+                    fitted=project.plan.columns if keep else None,
                 )
             except ScalewrightError as err:
                 self.show_message(err)
@@ -533,9 +552,11 @@ class MainWindow(QMainWindow):
             notes = []
             if check.changed:
                 notes.append(
-                    "the data file has changed since the project was saved, "
-                    "so the values were fitted again on the current data"
+                    "the data file has changed since the project was saved; "
+                    + ("the saved parameters were kept" if keep else
+                       "the parameters were fitted again on the current data")
                 )
+                self.session.set_dirty(True)
             if missing:
                 notes.append("not in the data any more: " + ", ".join(missing))
             if source != check.path:
@@ -549,11 +570,16 @@ class MainWindow(QMainWindow):
     # ================================================================== saving and exporting
 
     def _project_job(self):
-        """A function fitting the current choices into a Project (run off the interface thread)."""
+        """A function recording the current choices and their fitted values as a Project.
+
+        The session's fitted columns are used as they are (no fitting again), so saved
+        parameters the user chose to keep are what gets written.
+        """
         table = self.session.table
         choices = self.session.chosen()
         settings = self.session.settings
-        return lambda: tasks.fit_project(table, choices, settings)
+        plan = self.session.plan()  # cached fits; callers checked problems() first
+        return lambda: tasks.fit_project(table, choices, settings, plan=plan)
 
     def save(self, *, wait: bool = False) -> bool:
         if self.session.project_path is None:

@@ -214,12 +214,15 @@ class Session:
         settings: FitSettings | None = None,
         project_path: str | Path | None = None,
         dirty: bool = False,
+        fitted: Mapping[str, FittedColumn] | None = None,
     ) -> None:
         """Show a newly read table, optionally with a project's choices, in one update.
 
         Listeners hear ``table_loaded`` once (not one event per column). Choices for
         columns that are not in the table are dropped; invalid ones raise before anything
         changes.
+        ``fitted`` holds saved parameters (a project's) to use instead of fitting again;
+        a saved column is used only when its method and options match the choice.
         """
         labels = [str(c) for c in table.data.columns]
         new_choices: dict[str, ColumnChoice] = {}
@@ -232,6 +235,12 @@ class Session:
         self._settings = settings or FitSettings()
         self._project_path = Path(project_path) if project_path else None
         self._selection = []
+        for label, fc in (fitted or {}).items():
+            choice = self._choices.get(label)
+            if choice is not None and (fc.method, dict(fc.options)) == (
+                choice.method, dict(choice.options)
+            ):
+                self._fits.setdefault(label, {})[_choice_key(choice)] = fc
         for label in labels:
             if self._choices[label].method != "none":
                 self._fit(label)
