@@ -281,3 +281,27 @@ def test_selection_and_dirty_events(session, stack):
     assert rec.of("dirty") == [("dirty", True)]
     session.set_dirty(False)
     assert rec.of("dirty")[-1] == ("dirty", False)
+
+
+def test_group_values_differing_only_in_spaces_are_one_group(stack, tmp_path):
+    # Bug: the session keyed groups by raw value, so ' A' and 'A' were two codes with one
+    # key and the rows of one of them were scaled with the other's parameters.
+    import pandas as pd
+
+    from scalewright import io as swio
+    from scalewright.engine import apply
+
+    data = pd.DataFrame(
+        {"g": pd.array(["A", " A", "B", "B", "A", " A"], dtype="str"),
+         "x": [1.0, 2.0, 10.0, 30.0, 3.0, 4.0]}
+    )
+    kinds = {"g": swio.ColumnKind.TEXT, "x": swio.ColumnKind.NUMBER}
+    s = Session()
+    s.load_table(swio.Table(data, ["g", "x"], kinds, tmp_path / "t.csv", swio.ReadOptions()))
+    commands.set_method(stack, s, ["x"], "zscore")
+    commands.push_settings(stack, s, FitSettings(group_by="g"))
+    assert sorted(s.fitted_column("x").groups) == ["A", "B"]
+    expected, _ = apply(data, s.plan())
+    np.testing.assert_allclose(s.scaled_values("x"), expected["x"].to_numpy(float))
+    # one group of four values 1..4: mean 2.5
+    assert s.fitted_column("x").groups["A"].params["mean"] == 2.5

@@ -142,9 +142,6 @@ def group_codes(series: pd.Series) -> tuple[np.ndarray, list[str]]:
     return merge_group_keys(codes, [value_key(u) for u in uniques])
 
 
-_keys = group_codes  # the older private name
-
-
 def merge_group_keys(codes: np.ndarray, raw_keys: Sequence[str]) -> tuple[np.ndarray, list[str]]:
     """Give codes whose keys are equal one code (and blank keys the code -1)."""
     keys: list[str] = []
@@ -200,7 +197,7 @@ def fit_rows(data: pd.DataFrame, settings: FitSettings) -> np.ndarray:
     series = data[column]
     if isinstance(series, pd.DataFrame):
         raise ColumnError(column, "the name is used by more than one column")
-    codes, keys = _keys(series)
+    codes, keys = group_codes(series)
     key = _wanted_key(series, wanted)
     mask = codes == keys.index(key) if key in keys else np.zeros(len(data), dtype=bool)
     if not mask.any():
@@ -317,7 +314,7 @@ def fit(
     if settings.group_by is not None:
         if settings.group_by not in data.columns:
             raise ColumnError(settings.group_by, "the grouping column is not in the table")
-        group_keys = _keys(data[settings.group_by])
+        group_keys = group_codes(data[settings.group_by])
     fit_mask = None if settings.fit_where is None else mask  # None: every row, no masking
     fitted: dict[str, FittedColumn] = {}
     for column, choice in choices.items():
@@ -349,7 +346,7 @@ def _param_sets_by_row(
             f"there is no '{group_by}' column here, so the parameters fitted on all groups were used"
         )
         return [(fc.pooled, None)]
-    codes, keys = _keys(data[group_by])
+    codes, keys = group_codes(data[group_by])
     out = []
     pooled_rows = codes < 0
     for code, key in enumerate(keys):

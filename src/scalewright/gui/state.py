@@ -41,6 +41,7 @@ from ..engine import (
     fit_column,
     fit_rows,
     get_method,
+    group_codes,
     histogram,
     mapped_edges,
     numerics,
@@ -331,8 +332,7 @@ class Session:
                 if gb is not None:
                     if gb not in self.data.columns:
                         raise ScalewrightError(f"the grouping column '{gb}' is not in the table")
-                    codes, uniques = pd.factorize(self.data[gb], use_na_sentinel=True)
-                    self._group_keys = (codes, [value_key(u) for u in uniques])
+                    self._group_keys = group_codes(self.data[gb])
             except ScalewrightError as err:
                 self._settings_error = str(err)
                 self._fit_mask, self._group_keys = None, None
