@@ -284,8 +284,8 @@ def test_selection_and_dirty_events(session, stack):
 
 
 def test_group_values_differing_only_in_spaces_are_one_group(stack, tmp_path):
-    # Bug: the session keyed groups by raw value, so ' A' and 'A' were two codes with one
-    # key and the rows of one of them were scaled with the other's parameters.
+    # Group keys are canonical text (engine.value_key): ' A' and 'A' are one group, in the
+    # window's fit and in its per-row scaled values alike.
     import pandas as pd
 
     from scalewright import io as swio
