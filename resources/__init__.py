@@ -1,0 +1,1 @@
+"""Files shipped with the application (installed as the package ``scalewright.resources``)."""
