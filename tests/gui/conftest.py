@@ -94,3 +94,11 @@ def opened(window, wait_job):
     wait_job(window)
     assert window.session.table is not None
     return window
+
+
+@pytest.fixture
+def themed(qapp):
+    """The application's own look (font, palette, colours), as the window sets it up."""
+    from scalewright.gui.app import make_app
+
+    make_app()

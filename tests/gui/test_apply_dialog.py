@@ -8,22 +8,22 @@ written with the engine's result and with ``tasks.apply_to_file``'s own file.
 from __future__ import annotations
 
 import filecmp
-import os
 import time
 from pathlib import Path
 
 import numpy as np
 import pandas as pd
 import pytest
+from dialog_helpers import save_screenshot
 from PySide6.QtCore import QPoint, Qt
-from PySide6.QtWidgets import QApplication, QDialog, QFileDialog
+from PySide6.QtWidgets import QDialog, QFileDialog
 
 from scalewright import engine, tasks
 from scalewright import io as swio
 from scalewright.engine import ColumnChoice, FitSettings
 from scalewright.gui.apply_dialog import ApplyDialog
 
-pytestmark = pytest.mark.gui
+pytestmark = [pytest.mark.gui, pytest.mark.usefixtures("themed")]
 
 SAMPLE = Path(__file__).resolve().parents[2] / "sample_data"
 HARVEST_2025 = SAMPLE / "harvest_2025.csv"
@@ -36,27 +36,6 @@ CHOICES = {
     "irrigation_l_per_week": ColumnChoice("minmax"),
     "soil_ph": ColumnChoice("minmax"),
 }
-
-
-@pytest.fixture(autouse=True)
-def themed(qapp):
-    """The application's own look (font, palette, colours), as the window sets it up."""
-    from scalewright.gui.app import make_app
-
-    make_app()
-
-
-def save_screenshot(dialog, name: str, tmp_path: Path) -> None:
-    """Grab the dialog as drawn offscreen; also into $SCALEWRIGHT_SCREENSHOTS when set."""
-    QApplication.processEvents()  # let pending layout requests settle first
-    pixmap = dialog.grab()
-    assert not pixmap.isNull()
-    assert (pixmap.width(), pixmap.height()) == (dialog.width(), dialog.height())
-    assert pixmap.save(str(tmp_path / f"{name}.png"))
-    folder = os.environ.get("SCALEWRIGHT_SCREENSHOTS")
-    if folder:
-        Path(folder).mkdir(parents=True, exist_ok=True)
-        pixmap.save(str(Path(folder) / f"{name}.png"))
 
 
 @pytest.fixture(scope="module")

@@ -305,3 +305,126 @@ def test_group_values_differing_only_in_spaces_are_one_group(stack, tmp_path):
     np.testing.assert_allclose(s.scaled_values("x"), expected["x"].to_numpy(float))
     # one group of four values 1..4: mean 2.5
     assert s.fitted_column("x").groups["A"].params["mean"] == 2.5
+
+
+# ---------------------------------------------------------------- fits in the background
+
+
+class HeldCalls:
+    """A fit runner that keeps each call until the test lets it run (in order)."""
+
+    def __init__(self) -> None:
+        self.calls: list[tuple] = []
+
+    def __call__(self, work, deliver) -> None:
+        self.calls.append((work, deliver))
+
+    def run_all(self) -> None:
+        calls, self.calls = self.calls, []
+        for work, deliver in calls:
+            deliver(work())
+
+
+@pytest.fixture
+def held(session):
+    runner = HeldCalls()
+    session.fit_runner = runner
+    session.background_values = 100  # the sample's 2,412 rows count as large
+    return runner
+
+
+def test_a_slow_fit_of_a_large_column_waits_for_the_runner(session, stack, held, harvest_table):
+    rec = Recorder(session)
+    before = session.fit_count
+    commands.set_method(stack, session, ["yield_kg"], "boxcox")
+    assert len(held.calls) == 1 and session.fit_count == before
+    assert session.fitting("yield_kg")
+    # meanwhile the display calls say "nothing yet" instead of fitting on this thread
+    assert session.fitted_column("yield_kg") is None
+    assert session.fit_error("yield_kg") is None and session.warnings("yield_kg") == []
+    assert np.isnan(session.scaled_edges("yield_kg")).all()
+    assert session.scaled_figures("yield_kg") is None
+    assert np.isnan(session.scaled_values("yield_kg", slice(0, 5))).all()
+    assert session.describe_fit("yield_kg") == "Fitting…"
+    assert np.isnan(session.range_info("yield_kg", 50, 80, scaled=False).scaled_low)
+    assert session.fit_count == before
+    held.run_all()
+    assert not session.fitting("yield_kg") and session.fit_count == before + 1
+    assert rec.of("fitted") == [("fitted", "yield_kg"), ("fitted", "yield_kg")]
+    expected = fit_column(
+        column_values(harvest_table.data, "yield_kg"),
+        ColumnChoice("boxcox"),
+        column="yield_kg",
+    )
+    got = session.fitted_column("yield_kg")
+    assert got.pooled.params["lambda"] == expected.pooled.params["lambda"]
+    h = session.histogram("yield_kg")
+    np.testing.assert_array_equal(session.scaled_edges("yield_kg"), mapped_edges(h.edges, expected))
+    # the figures came with the fit, computed from the scaled values
+    scaled = expected.forward(column_values(harvest_table.data, "yield_kg"))
+    figures = session.scaled_figures("yield_kg")
+    assert figures.mean == pytest.approx(np.nanmean(scaled), rel=1e-12)
+    assert figures.n == int(np.isfinite(scaled).sum())
+
+
+def test_quick_methods_and_small_columns_are_fitted_at_once(session, stack, held):
+    commands.set_method(stack, session, ["yield_kg"], "zscore")
+    assert held.calls == [] and session.fitted_column("yield_kg") is not None
+    session.background_values = 10**9
+    commands.set_method(stack, session, ["soil_ph"], "boxcox")
+    assert held.calls == [] and session.fitted_column("soil_ph") is not None
+
+
+def test_writing_does_not_wait_for_a_background_fit(session, stack, held):
+    commands.set_method(stack, session, ["yield_kg"], "yeojohnson")
+    assert session.fitting("yield_kg")
+    assert session.problems() == {}  # fits at once, as saving and exporting must
+    lam = session.plan().columns["yield_kg"].pooled.params["lambda"]
+    assert not session.fitting("yield_kg")
+    rec = Recorder(session)
+    held.run_all()  # the late result changes nothing, and says so once
+    assert session.plan().columns["yield_kg"].pooled.params["lambda"] == lam
+    assert rec.of("fitted") == [("fitted", "yield_kg")]
+
+
+def test_a_late_fit_from_before_a_settings_change_is_dropped(session, stack, held):
+    commands.set_method(stack, session, ["yield_kg"], "robust")
+    commands.push_settings(stack, session, FitSettings(("split", "train"), None))
+    assert len(held.calls) == 2  # the old fit, and the refit on the training rows
+    rec = Recorder(session)
+    old_work, old_deliver = held.calls.pop(0)
+    old_deliver(old_work())
+    assert session.fitting("yield_kg") and rec.of("fitted") == []
+    held.run_all()
+    fc = session.fitted_column("yield_kg")
+    assert fc.pooled.n < session.summary("yield_kg").count  # fitted on the training rows only
+
+
+def test_switching_on_before_a_fit_lands_shows_the_latest_choice(session, stack, held):
+    commands.set_method(stack, session, ["yield_kg"], "boxcox")
+    commands.set_method(stack, session, ["yield_kg"], "yeojohnson")
+    rec = Recorder(session)
+    held.run_all()
+    assert session.choice("yield_kg").method == "yeojohnson"
+    assert session.fitted_column("yield_kg").method == "yeojohnson"
+    assert rec.of("fitted") == [("fitted", "yield_kg")]  # only the current choice's landing
+    stack.undo()  # back to Box-Cox: its fit already landed, nothing waits
+    assert not session.fitting("yield_kg") and held.calls == []
+    assert session.fitted_column("yield_kg").method == "boxcox"
+
+
+def test_column_facts_are_what_the_session_would_compute(harvest_table):
+    from scalewright.gui.state import column_facts
+
+    facts = column_facts(harvest_table)
+    numbers = [c for c in harvest_table.data.columns if str(harvest_table.kinds[c]) == "number"]
+    assert sorted(facts) == sorted(numbers)
+    x = column_values(harvest_table.data, "yield_kg")
+    np.testing.assert_array_equal(facts["yield_kg"].values, x, strict=True)
+    np.testing.assert_array_equal(facts["yield_kg"].histogram.counts, histogram(x, 30).counts)
+    assert facts["yield_kg"].summary == describe(x)
+    s = Session()
+    s.load_table(harvest_table, facts=facts)
+    assert s.values("yield_kg") is facts["yield_kg"].values  # used, not computed again
+    assert s.summary("yield_kg") is facts["yield_kg"].summary
+    assert s.suggestion("yield_kg") is facts["yield_kg"].suggestion

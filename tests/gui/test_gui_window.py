@@ -371,6 +371,89 @@ def test_cancelling_a_long_export_leaves_no_file(qtbot, window, big_table, tmp_p
     assert w.session.choice("yield_kg").method == "boxcox"  # nothing lost
 
 
+
+def test_a_slow_fit_of_a_large_column_lands_without_holding_up_the_window(
+    qtbot, window, big_table
+):
+    w = window
+    s = w.session
+    s.load_table(big_table)  # 300,000 rows: Box-Cox is fitted in the background
+    w.columns.select_labels(["yield_kg"])
+    before = s.fit_count
+    choose_method(w, "boxcox")
+    # the call returned before the fit: the scaled side says so, the original side is drawn
+    assert s.fitting("yield_kg") and s.fit_count == before
+    assert "fitting…" in w.histograms.scaled_title.text()
+    assert not w.histograms.scaled.bars.isVisible()
+    assert w.histograms.original.bars.isVisible()
+    assert w.method_panel.fitted.text() == "Fitting…"
+    qtbot.waitUntil(lambda: not s.fitting("yield_kg"), timeout=30000)
+    assert s.fit_count == before + 1
+    assert "Box-Cox" in w.histograms.scaled_title.text()
+    assert "fitting" not in w.histograms.scaled_title.text()
+    assert w.histograms.scaled.bars.isVisible()
+    fc = s.fitted_column("yield_kg")
+    np.testing.assert_allclose(
+        w.histograms.scaled.bars.opts["x0"],
+        fc.forward(s.histogram("yield_kg").edges[:-1]),
+        rtol=1e-12,
+    )
+    assert w.method_panel.fitted.text().startswith("Box-Cox. Fitted on 300,000 values")
+    qtbot.waitUntil(lambda: w.histograms.scaled.figures.text().startswith("n 300,000"))
+
+
+def test_method_box_and_scaled_title_say_what_is_shown(qtbot, window, wait_job):
+    w = window
+    box = w.method_panel.method_box
+    assert box.currentIndex() == -1 and box.placeholderText() == "(no column selected)"
+    w.load_data(HARVEST_2025)
+    wait_job(w)
+    click_row(qtbot, w, "yield_kg")
+    assert w.histograms.scaled_title.text().endswith("Scaled: left as it is for now")
+    choose_method(w, "zscore")
+    assert w.histograms.scaled_title.text().endswith("Scaled with z-score")
+    click_row(qtbot, w, "soil_ph", Qt.KeyboardModifier.ControlModifier)  # left as it is
+    assert box.currentIndex() == -1 and box.placeholderText() == "(different methods)"
+
+
+def test_figures_and_the_scaled_heading_are_never_cut(qtbot, opened):
+    w = opened
+    click_row(qtbot, w, "yield_kg")
+    choose_method(w, "boxcox")
+    qtbot.waitUntil(lambda: w.histograms.scaled.figures.text().startswith("n "))
+    QApplication.processEvents()
+    assert w.histograms.scaled.figures.text().count("\n") == 3  # four short lines
+    for side in (w.histograms.original, w.histograms.scaled):
+        label = side.figures
+        assert label.height() >= label.heightForWidth(label.width())  # every line shows
+    w.preview.set_show_scaled(True)
+    QApplication.processEvents()
+    header = w.preview.view.horizontalHeader()
+    col = w.session.labels.index("yield_kg")
+    text = w.preview.model.headerData(col, Qt.Orientation.Horizontal)
+    assert text == "yield_kg\n(scaled)"
+    assert header.height() >= 2 * header.fontMetrics().lineSpacing()
+
+
+def test_option_boxes_are_built_once_per_method(qtbot, opened):
+    w = opened
+    click_row(qtbot, w, "yield_kg")
+    choose_method(w, "minmax")
+    low = w.method_panel._option_widgets["low"]
+    choose_method(w, "zscore")
+    assert set(w.method_panel._option_widgets) == {"sd"}
+    choose_method(w, "minmax")
+    assert w.method_panel._option_widgets["low"] is low  # the same box, shown again
+    assert low.isVisible()
+    QApplication.processEvents()
+    # the panel fits its column: nothing is cut off on the right by a wide number box
+    assert w.method_panel.width() <= w.method_scroll.viewport().width()
+    low.setValue(-1.0)
+    assert w.session.choice("yield_kg").options["low"] == -1.0
+    choose_method(w, "robust")  # no options: the box is hidden
+    assert not w.method_panel.options_box.isVisible()
+
+
 # ---------------------------------------------------------------- errors and the rest
 
 

@@ -7,19 +7,19 @@ by hand from the file's own text.
 
 from __future__ import annotations
 
-import os
 from pathlib import Path
 
 import numpy as np
 import pandas as pd
 import pytest
+from dialog_helpers import choose, save_screenshot
 from PySide6.QtCore import Qt
-from PySide6.QtWidgets import QApplication, QDialog
+from PySide6.QtWidgets import QDialog
 
 from scalewright import io as swio
 from scalewright.gui.import_dialog import ImportDialog
 
-pytestmark = pytest.mark.gui
+pytestmark = [pytest.mark.gui, pytest.mark.usefixtures("themed")]
 
 SAMPLE = Path(__file__).resolve().parents[2] / "sample_data"
 
@@ -31,41 +31,6 @@ SEMICOLON_TEXT = (
     "Mill Brook;2.000,25;13,0\n"
     "Hilltop;987,5;11,25\n"
 )
-
-
-@pytest.fixture(autouse=True)
-def themed(qapp):
-    """The application's own look (font, palette, colours), as the window sets it up."""
-    from scalewright.gui.app import make_app
-
-    make_app()
-
-
-def save_screenshot(dialog, name: str, tmp_path: Path) -> Path:
-    """Grab the dialog as drawn offscreen; also into $SCALEWRIGHT_SCREENSHOTS when set
-    (``SCALEWRIGHT_SCREENSHOTS=docs/screenshots python -m pytest tests/gui``)."""
-    QApplication.processEvents()  # let pending layout requests settle first
-    pixmap = dialog.grab()
-    assert not pixmap.isNull()
-    assert (pixmap.width(), pixmap.height()) == (dialog.width(), dialog.height())
-    out = tmp_path / f"{name}.png"
-    assert pixmap.save(str(out))
-    folder = os.environ.get("SCALEWRIGHT_SCREENSHOTS")
-    if folder:
-        Path(folder).mkdir(parents=True, exist_ok=True)
-        pixmap.save(str(Path(folder) / f"{name}.png"))
-    return out
-
-
-def choose(qtbot, box, value) -> None:
-    """Pick the item whose data is ``value`` with the keyboard, as a user would."""
-    box.setFocus()
-    qtbot.keyClick(box, Qt.Key.Key_Home)
-    for _ in range(box.count()):
-        if box.currentData() == value:
-            return
-        qtbot.keyClick(box, Qt.Key.Key_Down)
-    assert box.currentData() == value, f"{value!r} is not in the list"
 
 
 def type_row(qtbot, spin, row: int) -> None:

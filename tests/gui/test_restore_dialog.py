@@ -9,21 +9,21 @@ sd 36.650738430940336 kg, so predicted_kg = predicted_yield * sd + mean.
 from __future__ import annotations
 
 import filecmp
-import os
 from pathlib import Path
 
 import numpy as np
 import pandas as pd
 import pytest
+from dialog_helpers import choose, save_screenshot
 from PySide6.QtCore import Qt
-from PySide6.QtWidgets import QApplication, QDialog, QFileDialog
+from PySide6.QtWidgets import QDialog, QFileDialog
 
 from scalewright import io as swio
 from scalewright import tasks
 from scalewright.engine import ColumnChoice, FitSettings
 from scalewright.gui.restore_dialog import LEAVE, RestoreDialog
 
-pytestmark = pytest.mark.gui
+pytestmark = [pytest.mark.gui, pytest.mark.usefixtures("themed")]
 
 SAMPLE = Path(__file__).resolve().parents[2] / "sample_data"
 HARVEST_2025 = SAMPLE / "harvest_2025.csv"
@@ -31,27 +31,6 @@ HARVEST_2026 = SAMPLE / "harvest_2026.csv"
 PREDICTIONS = SAMPLE / "predicted_yield_scaled.csv"
 README_MEAN = 75.54385054488843
 README_SD = 36.650738430940336
-
-
-@pytest.fixture(autouse=True)
-def themed(qapp):
-    """The application's own look (font, palette, colours), as the window sets it up."""
-    from scalewright.gui.app import make_app
-
-    make_app()
-
-
-def save_screenshot(dialog, name: str, tmp_path: Path) -> None:
-    """Grab the dialog as drawn offscreen; also into $SCALEWRIGHT_SCREENSHOTS when set."""
-    QApplication.processEvents()  # let pending layout requests settle first
-    pixmap = dialog.grab()
-    assert not pixmap.isNull()
-    assert (pixmap.width(), pixmap.height()) == (dialog.width(), dialog.height())
-    assert pixmap.save(str(tmp_path / f"{name}.png"))
-    folder = os.environ.get("SCALEWRIGHT_SCREENSHOTS")
-    if folder:
-        Path(folder).mkdir(parents=True, exist_ok=True)
-        pixmap.save(str(Path(folder) / f"{name}.png"))
 
 
 @pytest.fixture(scope="module")
@@ -94,17 +73,6 @@ def pick_data(qtbot, dialog: RestoreDialog, path: Path) -> None:
 def pick_output(qtbot, dialog: RestoreDialog, path: Path) -> None:
     dialog.output_row.edit.clear()
     qtbot.keyClicks(dialog.output_row.edit, str(path))
-
-
-def choose(qtbot, box, value) -> None:
-    """Pick the item whose data is ``value`` with the keyboard, as a user would."""
-    box.setFocus()
-    qtbot.keyClick(box, Qt.Key.Key_Home)
-    for _ in range(box.count()):
-        if box.currentData() == value:
-            return
-        qtbot.keyClick(box, Qt.Key.Key_Down)
-    assert box.currentData() == value, f"{value!r} is not in the list"
 
 
 def save_and_wait(qtbot, dialog: RestoreDialog) -> None:

@@ -30,6 +30,7 @@ class ColumnModel(QAbstractTableModel):
         self._labels: list[str] = []
         session.table_loaded.connect(self._reset)
         session.choices_changed.connect(self._rows_changed)
+        session.fitted.connect(lambda label: self._rows_changed([label]))
         session.settings_changed.connect(self._all_changed)
 
     def _reset(self) -> None:

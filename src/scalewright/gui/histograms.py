@@ -38,14 +38,19 @@ def fmt(v: float) -> str:
     return text.replace("-", "\u2212")
 
 
+FIGURE_LINES = 4
+
+
 def figures_text(f: Figures | None) -> str:
-    """Three short lines, so that the figures fit under a half-width plot without breaking."""
+    """Four short lines, so that the figures fit under a half-width plot without breaking
+    (a wrapped line would make one plot shorter than the other)."""
     if f is None:
         return ""
     return (
         f"n {f.n:,}    missing {f.missing:,}\n"
         f"mean {fmt(f.mean)}    sd {fmt(f.sd)}\n"
-        f"min {fmt(f.min)}    max {fmt(f.max)}    skewness {fmt(f.skewness)}"
+        f"min {fmt(f.min)}    max {fmt(f.max)}\n"
+        f"skewness {fmt(f.skewness)}"
     )
 
 
@@ -88,10 +93,21 @@ class _Side:
         self.figures = QLabel("")
         self.figures.setProperty("role", "hint")
         self.figures.setWordWrap(True)
+        # Always as high as the figures ("…", a message, or the figures), so that a method
+        # switch never changes the height of the plots above (which would repaint their axes).
+        lines = FIGURE_LINES * self.figures.fontMetrics().lineSpacing()
+        self.figures.setMinimumHeight(lines + 2)
+        self._axis_title = ""
         self.figures.setToolTip(
             f"Summary of the column in {title.lower()}: how many values, how many blanks, "
             "mean, standard deviation, smallest, largest and skewness (0 = symmetric)"
         )
+
+    def set_axis_title(self, text: str) -> None:
+        """The label under the x axis (set only when it changes: setting it lays out anew)."""
+        if text != self._axis_title:
+            self._axis_title = text
+            self.plot.setLabel("bottom", text)
 
     def set_bars(self, edges: np.ndarray, counts: np.ndarray) -> None:
         x0, x1 = edges[:-1], edges[1:]
@@ -166,7 +182,9 @@ class HistogramPanel(QWidget):
         for col, (side, title) in enumerate(
             ((self.original, self.original_title), (self.scaled, self.scaled_title))
         ):
-            title.setWordWrap(True)
+            # One line: a title that wrapped on one method and not on another would move
+            # the plots below it.
+            title.setWordWrap(False)
             grid.addWidget(title, 0, col)
             grid.addWidget(side.widget, 1, col)
             grid.addWidget(side.figures, 2, col)
@@ -236,7 +254,7 @@ class HistogramPanel(QWidget):
         self.original.set_bars(h.edges, h.counts)
         self.original_title.setText(f"<b style='color:{theme.ORIGINAL}'>\u25a0</b> Original units")
         self.original.figures.setText(figures_text(s.figures(label)))
-        self.original.plot.setLabel("bottom", s.header(label))
+        self.original.set_axis_title(s.header(label))
         self._draw_scaled()
         if self.range_button.isChecked():
             self._reset_range()
@@ -257,7 +275,14 @@ class HistogramPanel(QWidget):
         error = s.fit_error(label)
         edges = s.scaled_edges(label)
         self.scaled.set_bars(edges, h.counts)
-        if error:
+        if s.fitting(label):
+            # A slow fit of a large column is on its way; the bars follow when it lands.
+            self.scaled_title.setText(
+                f"<b style='color:{theme.SCALED}'>\u25a0</b> Scaled with {method.name}: "
+                "fitting…"
+            )
+            self.scaled.figures.setText("")
+        elif error:
             self.scaled_title.setText(
                 f"<b style='color:{theme.SCALED}'>\u25a0</b> Scaled: "
                 f"<span style='color:{theme.WARNING}'>cannot be fitted</span>"
@@ -266,12 +291,11 @@ class HistogramPanel(QWidget):
                 f"{method.name} cannot be used on this column; the method panel says why."
             )
         else:
-            self.scaled_title.setText(
-                f"<b style='color:{theme.SCALED}'>\u25a0</b> Scaled with {method.name}"
-            )
+            how = f" with {method.name}" if method.id != "none" else ": left as it is for now"
+            self.scaled_title.setText(f"<b style='color:{theme.SCALED}'>\u25a0</b> Scaled{how}")
             self.scaled.figures.setText("…")
             self._figures_timer.start(0)  # figures follow right after the bars are drawn
-        self.scaled.plot.setLabel("bottom", f"{s.header(label)}, scaled")
+        self.scaled.set_axis_title(f"{s.header(label)}, scaled")
         fc = s.fitted_column(label)
         if fc is not None and fc.groups:
             self.note.setText(
@@ -289,8 +313,9 @@ class HistogramPanel(QWidget):
             self.set_range(self.range.low, self.range.high)
 
     def _update_scaled_figures(self) -> None:
-        if self.label is not None and not self.session.fit_error(self.label):
-            self.scaled.figures.setText(figures_text(self.session.scaled_figures(self.label)))
+        s = self.session
+        if self.label is not None and not s.fitting(self.label) and not s.fit_error(self.label):
+            self.scaled.figures.setText(figures_text(s.scaled_figures(self.label)))
 
     # ------------------------------------------------------------------ hover
 

@@ -6,36 +6,25 @@ user can change. A change re-reads the start of the file with that setting fixed
 everything the user has not touched guessed again, so the preview always shows the rows
 exactly as they would load. A setting that makes the file unreadable is explained in the
 dialog and the Open button stays disabled until it is fixed.
-
-This module also holds ``FrameModel``, the small read-only table model the apply and
-restore dialogs use for their previews.
 """
 
 from __future__ import annotations
 
-import datetime as dt
-import math
 from dataclasses import fields
 from pathlib import Path
 from typing import Any
 
-import numpy as np
-import pandas as pd
-from PySide6.QtCore import QAbstractTableModel, QModelIndex, Qt, QTimer, Signal
+from PySide6.QtCore import Qt, QTimer, Signal
 from PySide6.QtWidgets import (
-    QAbstractItemView,
     QComboBox,
     QDialog,
     QDialogButtonBox,
     QFormLayout,
     QGroupBox,
     QHBoxLayout,
-    QHeaderView,
     QLabel,
     QPushButton,
-    QSizePolicy,
     QSpinBox,
-    QTableView,
     QVBoxLayout,
     QWidget,
 )
@@ -43,27 +32,11 @@ from PySide6.QtWidgets import (
 from .. import io as swio
 from ..io import ReadOptions
 from ..io.options import WORKBOOK_SUFFIXES
-from . import theme
+from .frame_view import FrameModel, make_preview_view
+from .widgets import MUTED_STYLE, escape_html, kind_word, message_label
 
 PREVIEW_ROWS = 50
 REFRESH_DELAY_MS = 150
-
-# Colour-blind-safe accents from the theme; the text always carries the meaning too, so
-# nothing depends on the colour alone.
-ERROR_STYLE = f"color: {theme.WARNING}; font-weight: 600;"
-MUTED_STYLE = f"color: {theme.MUTED_TEXT};"
-
-KIND_WORDS = {
-    "number": ("number", "Numbers: this column can be scaled."),
-    "identifier": (
-        "identifier",
-        "Codes or identifiers (for example with leading zeros): kept as text, never scaled.",
-    ),
-    "date": ("date", "Dates or times: kept as they are, never scaled."),
-    "boolean": ("yes/no", "True/false values: kept as they are, never scaled."),
-    "text": ("text", "Text or categories: kept as they are, never scaled."),
-    "empty": ("empty", "No values at all in this column."),
-}
 
 ENCODINGS = (
     ("utf-8", "UTF-8"),
@@ -92,125 +65,6 @@ THOUSANDS_WORDS = (
     (" ", "Space  1 234 567"),
     ("'", "Apostrophe  1'234'567"),
 )
-
-
-def kind_word(kind: Any) -> tuple[str, str]:
-    """(short word, one-sentence explanation) for a column kind."""
-    key = str(getattr(kind, "value", kind))
-    return KIND_WORDS.get(key, (key, ""))
-
-
-def format_cell(value: Any) -> str:
-    """A cell as the user should see it: blanks empty, numbers without float noise."""
-    if value is None or value is pd.NA or value is pd.NaT:
-        return ""
-    if isinstance(value, (float, np.floating)):
-        v = float(value)
-        if math.isnan(v):
-            return ""
-        if math.isinf(v):
-            return "infinite" if v > 0 else "-infinite"
-        return f"{v:.10g}"
-    if isinstance(value, (bool, np.bool_)):
-        return "true" if value else "false"
-    if isinstance(value, pd.Timestamp):
-        if value.hour == value.minute == value.second == value.microsecond == 0:
-            return value.strftime("%Y-%m-%d")
-        return value.isoformat(sep=" ")
-    if isinstance(value, (dt.date, dt.datetime)):
-        return value.isoformat()
-    return str(value)
-
-
-class FrameModel(QAbstractTableModel):
-    """A read-only view of a small DataFrame; cells are formatted only when drawn."""
-
-    def __init__(
-        self,
-        frame: pd.DataFrame | None = None,
-        *,
-        header_tips: dict[str, str] | None = None,
-        header_texts: dict[str, str] | None = None,
-        parent=None,
-    ) -> None:
-        super().__init__(parent)
-        self._frame = pd.DataFrame()
-        self._tips: dict[str, str] = {}
-        self._texts: dict[str, str] = {}
-        self.set_frame(frame, header_tips=header_tips, header_texts=header_texts)
-
-    def set_frame(
-        self,
-        frame: pd.DataFrame | None,
-        *,
-        header_tips: dict[str, str] | None = None,
-        header_texts: dict[str, str] | None = None,
-    ) -> None:
-        self.beginResetModel()
-        self._frame = frame if frame is not None else pd.DataFrame()
-        self._tips = dict(header_tips or {})
-        self._texts = dict(header_texts or {})
-        self.endResetModel()
-
-    def frame(self) -> pd.DataFrame:
-        return self._frame
-
-    def rowCount(self, parent=QModelIndex()) -> int:  # noqa: B008 - Qt's own signature
-        return 0 if parent.isValid() else len(self._frame)
-
-    def columnCount(self, parent=QModelIndex()) -> int:  # noqa: B008
-        return 0 if parent.isValid() else self._frame.shape[1]
-
-    def data(self, index: QModelIndex, role: int = Qt.ItemDataRole.DisplayRole):
-        if not index.isValid():
-            return None
-        if role == Qt.ItemDataRole.DisplayRole:
-            return format_cell(self._frame.iat[index.row(), index.column()])
-        if role == Qt.ItemDataRole.TextAlignmentRole:
-            dtype = self._frame.dtypes.iloc[index.column()]
-            if pd.api.types.is_numeric_dtype(dtype) and not pd.api.types.is_bool_dtype(dtype):
-                return int(Qt.AlignmentFlag.AlignRight | Qt.AlignmentFlag.AlignVCenter)
-        return None
-
-    def headerData(self, section: int, orientation, role: int = Qt.ItemDataRole.DisplayRole):
-        if orientation == Qt.Orientation.Vertical:
-            if role == Qt.ItemDataRole.DisplayRole:
-                return str(section + 1)
-            return None
-        if section >= self._frame.shape[1]:
-            return None
-        label = str(self._frame.columns[section])
-        if role == Qt.ItemDataRole.DisplayRole:
-            return self._texts.get(label, label)
-        if role == Qt.ItemDataRole.ToolTipRole:
-            return self._tips.get(label, label)
-        return None
-
-
-def make_preview_view(model: QAbstractTableModel, tooltip: str) -> QTableView:
-    """A table view set up the same way in every dialog."""
-    view = QTableView()
-    view.setModel(model)
-    view.setToolTip(tooltip)
-    view.setEditTriggers(QAbstractItemView.EditTrigger.NoEditTriggers)
-    view.setSelectionBehavior(QAbstractItemView.SelectionBehavior.SelectRows)
-    view.setAlternatingRowColors(True)
-    view.setWordWrap(False)
-    view.horizontalHeader().setDefaultAlignment(Qt.AlignmentFlag.AlignLeft)
-    view.horizontalHeader().setSectionResizeMode(QHeaderView.ResizeMode.Interactive)
-    view.verticalHeader().setDefaultSectionSize(view.fontMetrics().height() + 8)
-    return view
-
-
-def message_label(style: str = ERROR_STYLE, role: str = "warning") -> QLabel:
-    label = QLabel()
-    label.setProperty("role", role)
-    label.setSizePolicy(QSizePolicy.Policy.Preferred, QSizePolicy.Policy.Minimum)
-    label.setWordWrap(True)
-    label.setStyleSheet(style)
-    label.setTextInteractionFlags(Qt.TextInteractionFlag.TextSelectableByMouse)
-    label.hide()
-    return label
 
 
 def describe_error(err: BaseException) -> str:
@@ -274,7 +128,7 @@ class ImportDialog(QDialog):
 
     def _build(self) -> None:
         intro = QLabel(
-            f"<span style='font-size:12pt'><b>{_html(self._path.name)}</b></span><br>"
+            f"<span style='font-size:12pt'><b>{escape_html(self._path.name)}</b></span><br>"
             "This is how the file will be read. Change a setting if something looks wrong; "
             "the preview follows."
         )
@@ -535,9 +389,9 @@ class ImportDialog(QDialog):
             word, explain = kind_word(kind) if kind is not None else ("", "")
             original = headers[i] if i < len(headers) else str(label)
             texts[label] = f"{label}\n{word}" if word else str(label)
-            tip = [f"<b>{_html(str(label))}</b>"]
+            tip = [f"<b>{escape_html(str(label))}</b>"]
             if original != label:
-                tip.append(f"Name in the file: '{_html(original)}'")
+                tip.append(f"Name in the file: '{escape_html(original)}'")
             if word:
                 tip.append(f"Kind: {word}. {explain}")
             tips[label] = "<br>".join(tip)
@@ -551,7 +405,7 @@ class ImportDialog(QDialog):
 
     def _show_notes(self, notes: list[str]) -> None:
         if notes:
-            items = "".join(f"<li>{_html(n)}</li>" for n in notes)
+            items = "".join(f"<li>{escape_html(n)}</li>" for n in notes)
             self.notes_label.setText(f"<ul style='margin-left:-20px'>{items}</ul>")
         else:
             self.notes_label.setText("Nothing unusual: the file reads as it is.")
@@ -583,7 +437,3 @@ def _canonical_encoding(name: str | None) -> str | None:
         if codecs.lookup(value).name == target:
             return value
     return name
-
-
-def _html(text: str) -> str:
-    return text.replace("&", "&amp;").replace("<", "&lt;").replace(">", "&gt;")

@@ -178,3 +178,49 @@ class JobRunner(QWidget):
     def wait(self, msecs: int = 30000) -> bool:
         """Block until the worker thread is idle (used when closing the window)."""
         return self.pool.waitForDone(msecs)
+
+
+class _CallRelay(QObject):
+    """Carries a finished call's result from the worker thread to the interface thread."""
+
+    landed = Signal(object, object)  # deliver, result
+
+
+class _Call(QRunnable):
+    def __init__(self, work: Callable[[], Any], deliver: Callable[[Any], None], relay) -> None:
+        super().__init__()
+        self.work, self.deliver, self.relay = work, deliver, relay
+        self.setAutoDelete(True)
+
+    def run(self) -> None:
+        # work() reports its own failures in its result (a fit's error text).
+        self.relay.landed.emit(self.deliver, self.work())
+
+
+class QuickCalls(QObject):
+    """Short calls off the interface thread, with no progress bar and no Cancel.
+
+    For work of tens of milliseconds that must not hold up a redraw (fitting Box-Cox to a
+    million values): ``calls(work, deliver)`` runs ``work()`` in a worker thread and then
+    ``deliver(result)`` on the interface thread. One worker, so calls land in order.
+    """
+
+    def __init__(self, parent: QObject | None = None) -> None:
+        super().__init__(parent)
+        self.pool = QThreadPool(self)
+        self.pool.setMaxThreadCount(1)
+        self._relay = _CallRelay()  # no parent: kept alive by every call that uses it
+        self._relay.landed.connect(self._land)
+        self.running = 0
+
+    def __call__(self, work: Callable[[], Any], deliver: Callable[[Any], None]) -> None:
+        self.running += 1
+        self.pool.start(_Call(work, deliver, self._relay))
+
+    def _land(self, deliver: Callable[[Any], None], result: Any) -> None:
+        self.running -= 1
+        deliver(result)
+
+    def wait(self, msecs: int = 30000) -> bool:
+        """Block until every call has run (the results are delivered by the event loop)."""
+        return self.pool.waitForDone(msecs)

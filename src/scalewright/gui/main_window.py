@@ -23,6 +23,7 @@ from PySide6.QtWidgets import (
     QLabel,
     QMainWindow,
     QMessageBox,
+    QScrollArea,
     QSplitter,
     QStyle,
     QUndoView,
@@ -41,11 +42,11 @@ from .column_list import ColumnList
 from .errors import show_error
 from .histograms import HistogramPanel
 from .import_dialog import ImportDialog
-from .jobs import JobRunner
+from .jobs import JobRunner, QuickCalls
 from .method_panel import MethodPanel
 from .preview import PreviewPanel
 from .restore_dialog import RestoreDialog
-from .state import Session
+from .state import Session, column_facts
 
 PROJECT_SUFFIX = ".swproj"
 READ_SUFFIXES = (".csv", ".tsv", ".txt", ".xlsx", ".xlsm", ".xls", ".ods")
@@ -72,6 +73,10 @@ class MainWindow(QMainWindow):
     ) -> None:
         super().__init__(parent)
         self.session = session or Session()
+        # Slow fits of large columns run off the interface thread (see state.py).
+        self.fits = QuickCalls(self)
+        if self.session.fit_runner is None:
+            self.session.fit_runner = self.fits
         self.settings = settings or QSettings()
         self.stack = QUndoStack(self)
         self.last_message: QMessageBox | None = None
@@ -111,7 +116,15 @@ class MainWindow(QMainWindow):
         self.main_split = QSplitter(Qt.Orientation.Horizontal)
         self.main_split.addWidget(left)
         self.main_split.addWidget(self.centre)
-        self.main_split.addWidget(self.method_panel)
+        # The method panel scrolls on its own: what it shows (an options box or not, a long
+        # fitted line) then never changes the width of the centre, and it fits low screens.
+        self.method_scroll = QScrollArea()
+        self.method_scroll.setWidget(self.method_panel)
+        self.method_scroll.setWidgetResizable(True)
+        self.method_scroll.setFrameShape(QScrollArea.Shape.NoFrame)
+        self.method_scroll.setHorizontalScrollBarPolicy(Qt.ScrollBarPolicy.ScrollBarAlwaysOff)
+        self.method_scroll.setMinimumWidth(300)
+        self.main_split.addWidget(self.method_scroll)
         self.main_split.setStretchFactor(0, 0)
         self.main_split.setStretchFactor(1, 1)
         self.main_split.setStretchFactor(2, 0)
@@ -234,25 +247,21 @@ class MainWindow(QMainWindow):
             "Ctrl+Shift+L",
             "Select every column that can be scaled",
         )
-        self.act_scaled_preview = self._action(
+        self.act_scaled_preview = self._switch(
             "Show scaled values in the data",
-            lambda: None,
+            self.preview.set_show_scaled,
             "Ctrl+T",
             "Switch the data table between original and scaled values",
         )
-        self.act_scaled_preview.setCheckable(True)
-        self.act_scaled_preview.toggled.connect(self.preview.set_show_scaled)
         self.preview.mode.currentIndexChanged.connect(
             lambda i: self._set_checked(self.act_scaled_preview, i == 1)
         )
-        self.act_range = self._action(
+        self.act_range = self._switch(
             "Select a range on the histograms",
-            lambda: None,
+            self.histograms.show_range,
             "Ctrl+R",
             "Show a range you can drag on either histogram",
         )
-        self.act_range.setCheckable(True)
-        self.act_range.toggled.connect(self.histograms.show_range)
         self.histograms.range_button.toggled.connect(
             lambda on: self._set_checked(self.act_range, on)
         )
@@ -266,6 +275,13 @@ class MainWindow(QMainWindow):
             "What each scaling method does and when to use it",
         )
         self.act_about = self._action("About Scalewright", self.show_about)
+
+    def _switch(self, text, on_toggle, shortcut, tip) -> QAction:
+        """A checkable action (menu item with a tick) that calls ``on_toggle(checked)``."""
+        a = self._action(text, lambda: None, shortcut, tip)
+        a.setCheckable(True)
+        a.toggled.connect(on_toggle)
+        return a
 
     @staticmethod
     def _set_checked(action: QAction, on: bool) -> None:
@@ -455,12 +471,20 @@ class MainWindow(QMainWindow):
     def load_data(self, path: str | Path, options: Any = None, *, then=None):
         """Read the file in the background and show it; on error nothing changes."""
         path = Path(path)
+        bins = self.session.bins
 
         def work(progress, cancelled):
-            return swio.read_table(path, options, progress=progress, cancelled=cancelled)
+            table = swio.read_table(path, options, progress=progress, cancelled=cancelled)
+            # Histogram and summary of every number column, here rather than on the
+            # interface thread the first time each column is selected.
+            facts = column_facts(table, bins, cancelled)
+            if cancelled():
+                raise Cancelled()
+            return table, facts
 
-        def done(table) -> None:
-            self.session.load_table(table)
+        def done(result) -> None:
+            table, facts = result
+            self.session.load_table(table, facts=facts)
             self.stack.clear()
             self.stack.setClean()
             self.add_recent(path)
@@ -861,6 +885,7 @@ class MainWindow(QMainWindow):
         if self.jobs.busy:
             self.jobs.cancel()
             self.jobs.wait()
+        self.fits.wait()
         self.save_geometry()
         event.accept()
 

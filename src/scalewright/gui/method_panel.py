@@ -18,6 +18,7 @@ from PySide6.QtWidgets import (
     QLabel,
     QPushButton,
     QSizePolicy,
+    QStackedWidget,
     QVBoxLayout,
     QWidget,
 )
@@ -63,8 +64,11 @@ class MethodPanel(QWidget):
         super().__init__(parent)
         self.session = session
         self.stack = stack
-        self._option_widgets: dict[str, QWidget] = {}
+        self._option_widgets: dict[str, QWidget] = {}  # the shown method's option widgets
         self._option_method: str | None = None
+        # One page of option widgets per method, built the first time the method is shown
+        # and kept: switching methods shows another page instead of building widgets.
+        self._option_pages: dict[str, tuple[QWidget, dict[str, QWidget]]] = {}
         self._fit_candidates: list[str] = []
 
         outer = QVBoxLayout(self)
@@ -100,8 +104,9 @@ class MethodPanel(QWidget):
 
         self.options_box = QGroupBox("Options")
         self.options_box.setToolTip("Settings of the chosen method")
-        self.options_form = QFormLayout(self.options_box)
-        self.options_form.setSpacing(theme.SPACING)
+        box_layout = QVBoxLayout(self.options_box)
+        self.options_pages = QStackedWidget()
+        box_layout.addWidget(self.options_pages)
         outer.addWidget(self.options_box)
 
         self.fitted = _label("", "hint")
@@ -165,6 +170,7 @@ class MethodPanel(QWidget):
         session.selection_changed.connect(lambda _labels: self.refresh())
         session.choices_changed.connect(self._on_choices)
         session.settings_changed.connect(self._on_settings)
+        session.fitted.connect(self._on_fitted)
         self._on_table()
 
     # ------------------------------------------------------------------ reading the session
@@ -190,6 +196,10 @@ class MethodPanel(QWidget):
     def _on_choices(self, labels: list[str]) -> None:
         if set(labels) & set(self.session.selection):
             self.refresh()
+
+    def _on_fitted(self, label: str) -> None:
+        if label in self.session.selection:
+            self._show_fit(self.labels)
 
     def _on_settings(self) -> None:
         s = self.session
@@ -257,6 +267,10 @@ class MethodPanel(QWidget):
             self.method_box.setCurrentIndex(self.method_box.findData(method.id))
         else:
             method = None
+            # Several columns with different methods, or nothing that can be scaled.
+            self.method_box.setPlaceholderText(
+                "(different methods)" if methods else "(no column selected)"
+            )
             self.method_box.setCurrentIndex(-1)
         self.method_box.blockSignals(False)
         if method is not None:
@@ -270,10 +284,24 @@ class MethodPanel(QWidget):
             )
             self.when.setText("")
         self._build_options(method, labels)
+        self._show_fit(labels)
         if len(labels) == 1:
-            self.fitted.setText(
-                s.describe_fit(labels[0]) if s.fitted_column(labels[0]) is not None else ""
+            self.suggest_button.setToolTip(
+                "Choose a method from the shape of the values (you can undo it). For this "
+                f"column: {s.suggestion(labels[0]).reason}"
             )
+
+    def _show_fit(self, labels: list[str]) -> None:
+        """The fitted values and warnings of the selected columns ("Fitting…" meanwhile)."""
+        s = self.session
+        has = bool(labels)
+        if len(labels) == 1:
+            if s.fitting(labels[0]):
+                self.fitted.setText("Fitting…")
+            elif s.fitted_column(labels[0]) is not None:
+                self.fitted.setText(s.describe_fit(labels[0]))
+            else:
+                self.fitted.setText("")
             warnings = s.warnings(labels[0])
             self.problem.setText("\n".join(f"\u26a0 {w}" for w in warnings))
         elif has:
@@ -294,30 +322,23 @@ class MethodPanel(QWidget):
             self.problem.setText("")
         self.fitted.setVisible(bool(self.fitted.text()))
         self.problem.setVisible(bool(self.problem.text()))
-        if len(labels) == 1:
-            self.suggest_button.setToolTip(
-                "Choose a method from the shape of the values (you can undo it). For this "
-                f"column: {s.suggestion(labels[0]).reason}"
-            )
 
     def _build_options(self, method, labels: list[str]) -> None:
         if method is None or not method.option_specs:
-            self._clear_options()
+            self._option_widgets = {}
+            self._option_method = None
             self.options_box.setVisible(False)
             return
         if self._option_method != method.id:
-            self._clear_options()
-            for spec in method.option_specs:
-                widget = self._option_widget(method.id, spec)
-                self._option_widgets[spec.name] = widget
-                text = OPTION_LABELS.get((method.id, spec.name), spec.name)
-                if isinstance(widget, QCheckBox):
-                    widget.setText(text)
-                    self.options_form.addRow(widget)
-                else:
-                    label = QLabel(text)
-                    label.setToolTip(spec.help)
-                    self.options_form.addRow(label, widget)
+            if method.id not in self._option_pages:
+                self._option_pages[method.id] = self._option_page(method)
+            page, widgets = self._option_pages[method.id]
+            # The box takes the height of the page shown, not of the tallest page built.
+            for other, _w in self._option_pages.values():
+                policy = QSizePolicy.Policy.Preferred if other is page else QSizePolicy.Policy.Ignored
+                other.setSizePolicy(policy, policy)
+            self.options_pages.setCurrentWidget(page)
+            self._option_widgets = widgets
             self._option_method = method.id
         self.options_box.setVisible(True)
         options = self.session.choice(labels[0]).options if labels else method.options()
@@ -332,17 +353,36 @@ class MethodPanel(QWidget):
                 widget.setCurrentIndex(max(widget.findData(value), 0))
             widget.blockSignals(False)
 
-    def _clear_options(self) -> None:
-        while self.options_form.rowCount():
-            self.options_form.removeRow(0)
-        self._option_widgets = {}
-        self._option_method = None
+    def _option_page(self, method) -> tuple[QWidget, dict[str, QWidget]]:
+        """A page with one row per option of the method, and its widgets by option name."""
+        page = QWidget()
+        form = QFormLayout(page)
+        form.setContentsMargins(0, 0, 0, 0)
+        form.setSpacing(theme.SPACING)
+        widgets: dict[str, QWidget] = {}
+        for spec in method.option_specs:
+            widget = self._option_widget(method.id, spec)
+            widgets[spec.name] = widget
+            text = OPTION_LABELS.get((method.id, spec.name), spec.name)
+            if isinstance(widget, QCheckBox):
+                widget.setText(text)
+                form.addRow(widget)
+            else:
+                label = QLabel(text)
+                label.setToolTip(spec.help)
+                form.addRow(label, widget)
+        self.options_pages.addWidget(page)
+        return page, widgets
 
     def _option_widget(self, method_id: str, spec: OptionSpec) -> QWidget:
         name = spec.name
         if spec.kind == "number":
             w = QDoubleSpinBox()
             w.setRange(-1e12, 1e12)
+            # Sized by the panel, not by the widest number the range allows (which would
+            # make the panel wider than its column and cut it off on the right).
+            w.setSizePolicy(QSizePolicy.Policy.Ignored, QSizePolicy.Policy.Fixed)
+            w.setMinimumWidth(90)
             w.setDecimals(4)
             w.setSingleStep(0.1)
             w.setKeyboardTracking(True)

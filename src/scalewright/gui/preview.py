@@ -129,6 +129,8 @@ class PreviewModel(QAbstractTableModel):
         if role == Qt.ItemDataRole.DisplayRole:
             if self.is_scaled_column(col):
                 label = self._labels[col]
+                if self.session.fitting(label):
+                    return "…"
                 if self.session.fit_error(label):
                     return ""
                 return format_scaled(float(self.scaled_block(label, row // BLOCK)[row % BLOCK]))
@@ -188,7 +190,7 @@ class PreviewPanel(QWidget):
             "Show the values as read from the file, or as they will be written after scaling"
         )
         self.mode.currentIndexChanged.connect(
-            lambda i: self.model.set_show_scaled(bool(self.mode.itemData(i)))
+            lambda i: self._show_scaled(bool(self.mode.itemData(i)))
         )
         top.addWidget(self.mode)
         layout.addLayout(top)
@@ -222,3 +224,9 @@ class PreviewPanel(QWidget):
 
     def set_show_scaled(self, on: bool) -> None:
         self.mode.setCurrentIndex(1 if on else 0)
+
+    def _show_scaled(self, on: bool) -> None:
+        self.model.set_show_scaled(on)
+        # Scaled columns have a two-line heading ("name" over "(scaled)"): make room for it.
+        header = self.view.horizontalHeader()
+        header.setMinimumHeight(2 * header.fontMetrics().lineSpacing() + 10 if on else 0)

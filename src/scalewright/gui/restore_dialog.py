@@ -19,7 +19,6 @@ from PySide6.QtCore import Qt, Signal
 from PySide6.QtWidgets import (
     QAbstractItemView,
     QComboBox,
-    QDialogButtonBox,
     QFileDialog,
     QGroupBox,
     QHBoxLayout,
@@ -37,16 +36,10 @@ from .. import engine, tasks
 from .. import io as swio
 from ..errors import ScalewrightError
 from . import theme
-from .apply_dialog import (
-    OK_STYLE,
-    FileRow,
-    OutputRow,
-    WritingDialog,
-    plural,
-    set_message,
-)
 from .errors import plain_message
-from .import_dialog import MUTED_STYLE, FrameModel, kind_word, make_preview_view, message_label
+from .frame_view import FrameModel, make_preview_view
+from .widgets import MUTED_STYLE, escape_html, kind_word, message_label, plural, set_message
+from .writing_dialog import WritingDialog, saved_parameters
 
 PREVIEW_ROWS = 20
 LEAVE = "leave as is"
@@ -63,15 +56,11 @@ class RestoreDialog(WritingDialog):
     way the controls do.
     """
 
-    previewReady = Signal()  # the mapping table was rebuilt for a newly chosen file
     projectChanged = Signal(object)  # Project, after one was loaded in the dialog
 
     def __init__(self, project=None, parent: QWidget | None = None) -> None:
         super().__init__(parent)
-        self._project = None
         self._project_error = ""
-        self._table: swio.Table | None = None
-        self._read_error = ""
         self._auto: dict[str, str] = {}
         self._combos: dict[str, QComboBox] = {}
         self._preview_frame = pd.DataFrame()
@@ -85,12 +74,10 @@ class RestoreDialog(WritingDialog):
     # ------------------------------------------------------------------ building
 
     def _build(self) -> None:
-        intro = QLabel(
-            "<span style='font-size:12pt'><b>Restore original units</b></span><br>"
+        intro = (
             "Turn scaled values, for example a model's predictions, back into the units of "
             "the original data, with the parameters saved in a project."
         )
-        intro.setWordWrap(True)
 
         self.project_label = QLabel()
         self.project_label.setObjectName("projectLabel")
@@ -112,18 +99,12 @@ class RestoreDialog(WritingDialog):
         project_layout.addLayout(project_row)
         project_layout.addWidget(self.project_error)
 
-        self.data_row = FileRow(
+        data_box = self.make_file_box(
+            "File of scaled values",
             "Choose the file of scaled values",
             "The file holding scaled values to bring back to original units, for example "
             "a model's predictions.",
         )
-        self.data_row.changed.connect(self._load_data)
-        self.data_error = message_label()
-        self.data_error.setObjectName("dataError")
-        data_box = QGroupBox("File of scaled values")
-        data_layout = QVBoxLayout(data_box)
-        data_layout.addWidget(self.data_row)
-        data_layout.addWidget(self.data_error)
 
         self.mapping_table = QTableWidget(0, 3)
         self.mapping_table.setObjectName("mapping")
@@ -152,6 +133,7 @@ class RestoreDialog(WritingDialog):
                                         QSizePolicy.Policy.Minimum)
         self.mapping_hint.setObjectName("mappingHint")
         self.mapping_hint.setWordWrap(True)
+        self.reading_label = self.mapping_hint
         mapping_box = QGroupBox("Which parameters restore each column")
         mapping_layout = QVBoxLayout(mapping_box)
         mapping_layout.addWidget(self.mapping_hint)
@@ -178,48 +160,15 @@ class RestoreDialog(WritingDialog):
         middle.addWidget(mapping_box, 5)
         middle.addWidget(preview_box, 4)
 
-        self.output_row = OutputRow(
+        out_box = self.make_output_box(
+            "Save the restored file as",
             "The file to write: .xlsx, .csv or .tsv. Columns that are not restored are "
-            "written as they are. It can never be the file of scaled values itself."
+            "written as they are. It can never be the file of scaled values itself.",
         )
         self.output_row.edit.setPlaceholderText(
             "Where to save, for example predicted_yield_kg.csv"
         )
-        self.output_row.changed.connect(self._update_state)
-        self.output_error = message_label()
-        self.output_error.setObjectName("outputError")
-        out_box = QGroupBox("Save the restored file as")
-        out_layout = QVBoxLayout(out_box)
-        out_layout.addWidget(self.output_row)
-        out_layout.addWidget(self.output_error)
-
-        self.buttons = QDialogButtonBox()
-        self.save_button = self.buttons.addButton(
-            "Save restored file", QDialogButtonBox.ButtonRole.ActionRole
-        )
-        self.save_button.setObjectName("save")
-        self.save_button.setDefault(True)
-        self.close_button = self.buttons.addButton(QDialogButtonBox.StandardButton.Close)
-        self.close_button.setAutoDefault(False)
-        self.close_button.setToolTip("Close this window (a file being written is stopped first).")
-        self.save_button.clicked.connect(self.save)
-        self.close_button.clicked.connect(self.reject)
-
-        bottom = QHBoxLayout()
-        bottom.setSpacing(theme.SPACING)
-        bottom.addWidget(self.runner, 1)
-        bottom.addWidget(self.buttons)
-
-        layout = QVBoxLayout(self)
-        layout.setContentsMargins(16, 16, 16, 16)
-        layout.setSpacing(10)
-        layout.addWidget(intro)
-        layout.addWidget(project_box)
-        layout.addWidget(data_box)
-        layout.addLayout(middle, 1)
-        layout.addWidget(out_box)
-        layout.addWidget(self.result_label)
-        layout.addLayout(bottom)
+        self.lay_out(intro, "Save restored file", project_box, data_box, (middle, 1), out_box)
 
     # ------------------------------------------------------------------ public API
 
@@ -248,13 +197,6 @@ class RestoreDialog(WritingDialog):
         self.projectChanged.emit(project)
         return True
 
-    def set_data_file(self, path: str | Path, sheet: str | None = None) -> None:
-        """Choose the file of scaled values (it is read in the background)."""
-        self.data_row.set_path(path, sheet=sheet)
-
-    def set_output(self, path: str | Path) -> None:
-        self.output_row.set_path(path)
-
     def automatic_mapping(self) -> dict[str, str]:
         """The pairs found by name for the chosen file."""
         return dict(self._auto)
@@ -282,18 +224,6 @@ class RestoreDialog(WritingDialog):
     def preview_frame(self) -> pd.DataFrame:
         return self._preview_frame.copy()
 
-    def table_read(self) -> swio.Table | None:
-        return self._table
-
-    def data_problem(self) -> str:
-        return self._data_problem()
-
-    def output_problem(self) -> str:
-        return self.output_error.toolTip() if self.output_error.isVisibleTo(self) else ""
-
-    def can_save(self) -> bool:
-        return self.save_button.isEnabled()
-
     # ------------------------------------------------------------------ project
 
     def _fitted(self) -> dict:
@@ -311,14 +241,14 @@ class RestoreDialog(WritingDialog):
         fitted = self._fitted()
         source = Path(self._project.source).name if self._project.source else "an unnamed file"
         if not fitted:
-            self.project_label.setText(f"The project for <b>{_html(source)}</b> has no fitted "
+            self.project_label.setText(f"The project for <b>{escape_html(source)}</b> has no fitted "
                                        "columns yet, so there is nothing to restore with.")
             return
         names = ", ".join(
-            f"{_html(c)} ({engine.get_method(fc.method).name})" for c, fc in fitted.items()
+            f"{escape_html(c)} ({engine.get_method(fc.method).name})" for c, fc in fitted.items()
         )
         self.project_label.setText(
-            f"Fitted on <b>{_html(source)}</b>: {plural(len(fitted), 'column')}: {names}"
+            f"Fitted on <b>{escape_html(source)}</b>: {plural(len(fitted), 'column')}: {names}"
         )
 
     def _browse_project(self) -> None:
@@ -330,40 +260,17 @@ class RestoreDialog(WritingDialog):
 
     # ------------------------------------------------------------------ reading
 
-    def _load_data(self) -> None:
-        self._table = None
-        self._read_error = ""
-        self.result_label.hide()
-        path, sheet = self.data_row.path(), self.data_row.sheet()
-        if path is None:
-            self._fill_mapping()
-            return
-        self.output_row.suggested_folder = path.parent
-        if self.runner.busy:
-            self.cancel_job()
-            self.runner.job.ended.connect(self._load_data)
-            return
-
+    def _reader(self, path: Path, sheet: str | None):
         def read(progress, cancelled):
             return swio.read_table(path, swio.ReadOptions(sheet=sheet),
                                    progress=progress, cancelled=cancelled)
 
-        self.mapping_hint.setText(f"Reading {_html(path.name)}…")
-        self.run_job(f"Reading {path.name}…", read, self._data_read, self._data_failed,
-                     self._data_stopped)
+        return read
 
-    def _data_read(self, table: swio.Table) -> None:
+    def _take_read(self, table: swio.Table) -> None:
         self._table = table
-        self._fill_mapping()
-        self.previewReady.emit()
 
-    def _data_failed(self, err: BaseException) -> None:
-        self._read_error = plain_message(err)
-        self._fill_mapping()
-        self.previewReady.emit()
-
-    def _data_stopped(self) -> None:
-        self._read_error = "Reading was stopped; choose the file again."
+    def _show_file(self) -> None:
         self._fill_mapping()
 
     # ------------------------------------------------------------------ mapping
@@ -502,23 +409,12 @@ class RestoreDialog(WritingDialog):
 
     # ------------------------------------------------------------------ state
 
-    def _data_problem(self) -> str:
-        if self._read_error:
-            return self._read_error
-        return ""
-
     def _update_state(self) -> None:
         data_problem = self._data_problem()
         set_message(self.data_error, data_problem)
-        forbidden = [
-            (self.data_row.path(), "This is the file of scaled values. Choose another name, "
-                                   "so that it stays as it is."),
-            (Path(self._project.source) if self._project is not None and self._project.source
-             else None,
-             "This is the file the project was fitted on. Choose another name, so that it "
-             "stays as it is."),
-        ]
-        out_problem = self.output_row.problem(forbidden)
+        out_problem = self.output_check(
+            "This is the file of scaled values. Choose another name, so that it stays as it is."
+        )
         set_message(self.output_error, out_problem)
         mapping = self.mapping()
         ready = (
@@ -555,18 +451,15 @@ class RestoreDialog(WritingDialog):
 
     # ------------------------------------------------------------------ writing
 
-    def save(self) -> None:
-        """Write the restored file in the background (does nothing unless Save is enabled)."""
-        self._update_state()
-        if not self.save_button.isEnabled():
-            return
+    def _writer(self, target: Path):
         project, data_path = self._project, self.data_row.path()
-        target, sheet, mapping = self.output_row.path(), self.data_row.sheet(), self.mapping()
+        sheet, mapping = self.data_row.sheet(), self.mapping()
+
         def write(progress, cancelled):
             return tasks.restore_file(project, data_path, target, mapping=mapping, exact=True,
                                       sheet=sheet, progress=progress, cancelled=cancelled)
 
-        self.start_write(f"Writing {target.name}…", write, target)
+        return write
 
     def _write_done(self, reports) -> None:
         n = sum(r.n_values for r in reports)
@@ -576,18 +469,9 @@ class RestoreDialog(WritingDialog):
         if undefined:
             text += f" {plural(undefined, 'value')} had no value in original units and were " \
                     "left blank."
-        lines = tasks.describe_reports(reports, restoring=True)
-        self.show_result(text, OK_STYLE, details="\n".join(lines))
-        self.close_button.setText("Done")
-        self.close_button.setToolTip("Close this window; the file has been saved.")
+        self.show_written(text, tasks.describe_reports(reports, restoring=True))
 
 
 def _params_tip(fc) -> str:
     m = engine.get_method(fc.method)
-    params = ", ".join(f"{k} = {v:.10g}" if isinstance(v, float) else f"{k} = {v}"
-                       for k, v in fc.pooled.params.items())
-    return f"{fc.column}, {m.name}. Saved parameters: {params}"
-
-
-def _html(text: str) -> str:
-    return text.replace("&", "&amp;").replace("<", "&lt;").replace(">", "&gt;")
+    return f"{fc.column}, {m.name}. Saved parameters: {saved_parameters(fc)}"

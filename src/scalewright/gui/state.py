@@ -8,17 +8,24 @@ changed and checked in tests without a single widget.
 Caching rules (so that the window stays quick at a million rows):
 
 - a column's values (float64), its histogram (counts on original bins), its summary
-  (``describe``) and suggestion (``suggest``) and a sorted copy of its finite values are
-  computed once per loaded table;
+  (``describe``) and suggestion (``suggest``) are computed once per loaded table; the
+  window computes them in the loading job (``column_facts``), so that the first visit of
+  a column does not touch its values on the interface thread; a sorted copy of the finite
+  values is made the first time a range is selected;
 - a fitted column is kept per (column, choice) for the current fit settings, so switching
   back to an earlier method, or undoing, costs nothing; a change of fit settings clears it;
 - the scaled histogram is the same counts on ``mapped_edges``: switching a method maps
-  31 edges and never re-bins the values.
+  31 edges and never re-bins the values;
+- fits that search or sort (robust, Box-Cox, Yeo-Johnson) of a large column are handed to
+  ``fit_runner`` when the window has attached one: the column is then ``fitting`` until
+  the result lands and ``fitted`` is emitted again. Until then the display calls say
+  "nothing yet" (no edges, no figures, no warnings) instead of waiting, while ``plan``
+  and ``problems`` (used before writing anything) fit at once if they must.
 """
 
 from __future__ import annotations
 
-from collections.abc import Iterable, Mapping
+from collections.abc import Callable, Iterable, Mapping
 from dataclasses import dataclass
 from pathlib import Path
 from typing import Any
@@ -51,6 +58,14 @@ from ..engine import (
 from ..errors import ScalewrightError
 
 BINS = 30
+
+# Methods whose fit sorts or searches (robust: quantiles; Box-Cox and Yeo-Johnson: a search
+# for lambda), or whose scaled figures need a pass over every scaled value (the logarithm
+# and the power transforms), take tens of milliseconds at a million values: from this many
+# values on they run in the background when a runner is attached, as do fits per group.
+# The straight-line methods are one pass over the values and are fitted at once.
+BACKGROUND_METHODS = frozenset({"robust", "log", "boxcox", "yeojohnson"})
+BACKGROUND_VALUES = 200_000
 
 # Methods whose forward map is a straight line a*x + b: their scaled summary figures follow
 # exactly from the original ones, without touching the values.
@@ -112,6 +127,90 @@ def figures_of(values: np.ndarray) -> Figures:
     )
 
 
+@dataclass(frozen=True)
+class ColumnFacts:
+    """What the window shows about one number column before any method is chosen."""
+
+    values: np.ndarray  # float64, NaN for missing
+    histogram: Histogram
+    summary: ColumnSummary
+    suggestion: Suggestion
+
+
+def column_facts(
+    table: Any,
+    bins: int = BINS,
+    cancelled: Callable[[], bool] | None = None,
+) -> dict[str, ColumnFacts]:
+    """Values, histogram, summary and suggestion of every number column of a table.
+
+    Pure numpy work on a table nobody else holds yet: the window runs it in the job that
+    reads the file, so that visiting a column later costs no pass over its values.
+    """
+    out: dict[str, ColumnFacts] = {}
+    for label in (str(c) for c in table.data.columns):
+        if str(table.kinds.get(label, "text")) != "number":
+            continue
+        if cancelled is not None and cancelled():
+            break
+        values = column_values(table.data, label)
+        summary = describe(values)
+        out[label] = ColumnFacts(values, histogram(values, bins), summary, suggest(summary))
+    return out
+
+
+def scale_with(
+    x: np.ndarray,
+    fc: FittedColumn,
+    group_keys: tuple[np.ndarray, list[str]] | None,
+    rows: slice | np.ndarray | None = None,
+) -> np.ndarray:
+    """x (the column's values, or the given rows of it) scaled with each row's group's
+    parameters; rows of groups without their own parameters use the pooled ones."""
+    if not fc.groups or group_keys is None:
+        return fc.forward(x)
+    codes, keys = group_keys
+    if rows is not None:
+        codes = codes[rows]
+    out = np.full(x.shape, np.nan)
+    pooled = np.ones(x.shape, dtype=bool)
+    for code in np.unique(codes):
+        if code < 0:
+            continue
+        ps = fc.groups.get(keys[code])
+        if ps is None:
+            continue
+        here = codes == code
+        out[here] = fc.forward(x[here], ps)
+        pooled &= ~here
+    if pooled.any():
+        out[pooled] = fc.forward(x[pooled])
+    return out
+
+
+def _needs_values_for_figures(fc: FittedColumn) -> bool:
+    """Whether the scaled summary figures need the scaled values (not a straight line)."""
+    return fc.method not in AFFINE_METHODS or bool(fc.groups)
+
+
+def _fit_in_background(
+    values: np.ndarray,
+    choice: ColumnChoice,
+    label: str,
+    mask: np.ndarray | None,
+    groups: tuple[np.ndarray, list[str]] | None,
+) -> tuple[FittedColumn | str, Figures | None]:
+    """A fit and its scaled summary figures, from arrays only (safe in a worker thread)."""
+    try:
+        fc = fit_column(values, choice, column=label, fit_mask=mask, group_keys=groups)
+    except ScalewrightError as err:
+        return str(err), None
+    except Exception as err:  # shown as the column's problem, not lost in a thread
+        return f"column '{label}': the fit failed ({type(err).__name__}: {err})", None
+    figures = figures_of(scale_with(values, fc, groups)) if _needs_values_for_figures(fc) else None
+    return fc, figures
+
+
 def _choice_key(choice: ColumnChoice) -> tuple:
     return (choice.method, tuple(sorted((k, repr(v)) for k, v in choice.options.items())))
 
@@ -140,8 +239,13 @@ class Session:
         self._selection: list[str] = []
         self._project_path: Path | None = None
         self._dirty = False
+        self._generation = 0  # changes whenever the fits are cleared
         self._clear_caches()
         self.fit_count = 0  # how many times a column was fitted (tests and benchmark)
+        # fit_runner(work, deliver): run work() off the interface thread, then call
+        # deliver(result) on it. None (no window): every fit happens at once.
+        self.fit_runner: Callable[[Callable[[], Any], Callable[[Any], None]], None] | None = None
+        self.background_values = BACKGROUND_VALUES
 
     # ------------------------------------------------------------------ caches
 
@@ -156,6 +260,8 @@ class Session:
     def _clear_fits(self) -> None:
         # label -> {choice key -> FittedColumn | error text}
         self._fits: dict[str, dict[tuple, FittedColumn | str]] = {}
+        self._pending: set[tuple[str, tuple]] = set()  # (label, choice key) being fitted
+        self._generation += 1  # results of fits started before this are dropped
         self._scaled_figures: dict[int, Figures] = {}
         self._fit_mask: np.ndarray | None = None
         self._group_keys: tuple[np.ndarray, list[str]] | None = None
@@ -216,6 +322,7 @@ class Session:
         project_path: str | Path | None = None,
         dirty: bool = False,
         fitted: Mapping[str, FittedColumn] | None = None,
+        facts: Mapping[str, ColumnFacts] | None = None,
     ) -> None:
         """Show a newly read table, optionally with a project's choices, in one update.
 
@@ -224,6 +331,7 @@ class Session:
         changes.
         ``fitted`` holds saved parameters (a project's) to use instead of fitting again;
         a saved column is used only when its method and options match the choice.
+        ``facts`` holds ``column_facts(table)`` when the caller computed them already.
         """
         labels = [str(c) for c in table.data.columns]
         new_choices: dict[str, ColumnChoice] = {}
@@ -236,6 +344,12 @@ class Session:
         self._settings = settings or FitSettings()
         self._project_path = Path(project_path) if project_path else None
         self._selection = []
+        for label, f in (facts or {}).items():
+            if label in labels:
+                self._values[label] = f.values
+                self._hist[label] = f.histogram
+                self._summary[label] = f.summary
+                self._suggestion[label] = f.suggestion
         for label, fc in (fitted or {}).items():
             choice = self._choices.get(label)
             if choice is not None and (fc.method, dict(fc.options)) == (
@@ -244,7 +358,7 @@ class Session:
                 self._fits.setdefault(label, {})[_choice_key(choice)] = fc
         for label in labels:
             if self._choices[label].method != "none":
-                self._fit(label)
+                self._start_fit(label)
         self.table_loaded.emit()
         self.project_path_changed.emit(self._project_path)
         self.settings_changed.emit()
@@ -286,7 +400,7 @@ class Session:
                 changed.append(label)
         for label in changed:
             if self._choices[label].method != "none":
-                self._fit(label)
+                self._start_fit(label)
             self.fitted.emit(label)
         if changed:
             self.choices_changed.emit(changed)
@@ -311,7 +425,7 @@ class Session:
         self._clear_fits()
         chosen = list(self.chosen())
         for label in chosen:
-            self._fit(label)
+            self._start_fit(label)
         self.settings_changed.emit()
         for label in chosen:
             self.fitted.emit(label)
@@ -368,22 +482,81 @@ class Session:
         per_label[key] = result
         return result
 
+    def _start_fit(self, label: str) -> None:
+        """Fit the column's choice now, or hand a slow fit of a large column to the runner."""
+        choice = self._choices[label]
+        key = _choice_key(choice)
+        if key in self._fits.get(label, {}) or (label, key) in self._pending:
+            return
+        mask, groups = self._fit_inputs()
+        slow = choice.method in BACKGROUND_METHODS or groups is not None
+        if (
+            self.fit_runner is None
+            or not slow
+            or self._settings_error is not None
+            or self.summary(label).count < self.background_values
+        ):
+            self._fit(label)
+            return
+        values = self.values(label)
+        generation = self._generation
+        self._pending.add((label, key))
+        self.fit_runner(
+            lambda: _fit_in_background(values, choice, label, mask, groups),
+            lambda result: self._fit_landed(label, key, generation, result),
+        )
+
+    def _fit_landed(self, label: str, key: tuple, generation: int, result) -> None:
+        """A background fit is back (on the interface thread)."""
+        if generation != self._generation:
+            return  # the table or the fit settings changed meanwhile
+        self._pending.discard((label, key))
+        state, figures = result
+        per_label = self._fits.setdefault(label, {})
+        if key not in per_label:  # not fitted meanwhile by plan() or problems()
+            per_label[key] = state
+            if isinstance(state, FittedColumn):
+                self.fit_count += 1
+                if figures is not None:
+                    self._scaled_figures[id(state)] = figures
+        if label in self._choices and _choice_key(self._choices[label]) == key:
+            self.fitted.emit(label)
+
+    def fitting(self, label: str) -> bool:
+        """True while the column's current choice is being fitted in the background."""
+        choice = self._choices.get(label)
+        if choice is None or choice.method == "none":
+            return False
+        key = _choice_key(choice)
+        return (label, key) in self._pending and key not in self._fits.get(label, {})
+
     def fit_state(self, label: str) -> FittedColumn | str | None:
-        """The column's fitted parameters, the fit's error text, or None for 'leave as is'."""
+        """The column's fitted parameters, the fit's error text, or None for 'leave as is'.
+
+        Fits at once if need be, even while a background fit of it is on its way.
+        """
         if label not in self._choices or self._choices[label].method == "none":
             return None
         return self._fit(label)
 
     def fitted_column(self, label: str) -> FittedColumn | None:
+        """The fitted column (None for 'leave as is', a failed fit, or while fitting)."""
+        if self.fitting(label):
+            return None
         state = self.fit_state(label)
         return state if isinstance(state, FittedColumn) else None
 
     def fit_error(self, label: str) -> str | None:
+        """Why the column's choice cannot be fitted (None when it can, or while fitting)."""
+        if self.fitting(label):
+            return None
         state = self.fit_state(label)
         return state if isinstance(state, str) else None
 
     def warnings(self, label: str) -> list[str]:
         """Plain sentences about the column's fit: the error, or the fit's warnings."""
+        if self.fitting(label):
+            return []
         state = self.fit_state(label)
         if isinstance(state, str):
             prefix = f"column '{label}': "  # the window already says which column
@@ -412,7 +585,8 @@ class Session:
 
     def problems(self) -> dict[str, str]:
         """Columns whose choice cannot be fitted, with the reason."""
-        return {lab: err for lab in self.chosen() if (err := self.fit_error(lab))}
+        # _fit, not fit_error: a column still fitting in the background is fitted now.
+        return {lab: st for lab in self.chosen() if isinstance(st := self._fit(lab), str)}
 
     # ------------------------------------------------------------------ per-column figures
 
@@ -433,8 +607,11 @@ class Session:
         return self._hist[label]
 
     def scaled_edges(self, label: str) -> np.ndarray:
-        """The original bins' edges in scaled units (the same edges for 'leave as is')."""
+        """The original bins' edges in scaled units (the same edges for 'leave as is';
+        NaN edges while fitting or when the fit failed)."""
         edges = self.histogram(label).edges
+        if self.fitting(label):
+            return np.full_like(edges, np.nan)
         fc = self.fitted_column(label)
         if fc is None:
             return edges.copy() if self.fit_error(label) is None else np.full_like(edges, np.nan)
@@ -455,12 +632,15 @@ class Session:
         return Figures(s.count, s.missing, s.mean, s.sd, s.min, s.max, s.skewness)
 
     def scaled_figures(self, label: str) -> Figures | None:
-        """Summary figures in scaled units (None when the fit failed).
+        """Summary figures in scaled units (None when the fit failed or while fitting).
 
         For straight-line methods they follow from the original figures exactly; for the
         others (logarithm, power transforms, or one fit per group) they are computed once
-        from the scaled values and kept with the fitted column.
+        from the scaled values and kept with the fitted column (by the background fit,
+        when there was one).
         """
+        if self.fitting(label):
+            return None
         state = self.fit_state(label)
         if isinstance(state, str):
             return None
@@ -470,7 +650,7 @@ class Session:
         if cached is not None:
             return cached
         s = self.summary(label)
-        if state.method in AFFINE_METHODS and not state.groups:
+        if not _needs_values_for_figures(state):
             b, one = state.forward(np.array([0.0, 1.0]))
             a = float(one - b)
 
@@ -485,38 +665,24 @@ class Session:
         return out
 
     def scaled_values(self, label: str, rows: slice | np.ndarray | None = None) -> np.ndarray:
-        """Scaled values of the column (or of some rows), with each row's group parameters."""
+        """Scaled values of the column (or of some rows), with each row's group parameters
+        (NaN while fitting or when the fit failed)."""
         x = self.values(label)
         if rows is not None:
             x = x[rows]
+        if self.fitting(label):
+            return np.full_like(x, np.nan)
         fc = self.fitted_column(label)
         if fc is None:
             return x.copy() if self.fit_error(label) is None else np.full_like(x, np.nan)
-        if not fc.groups or self._group_keys is None:
-            return fc.forward(x)
-        codes, keys = self._group_keys
-        if rows is not None:
-            codes = codes[rows]
-        out = np.full(x.shape, np.nan)
-        pooled = np.ones(x.shape, dtype=bool)
-        for code in np.unique(codes):
-            if code < 0:
-                continue
-            ps = fc.groups.get(keys[code])
-            if ps is None:
-                continue
-            here = codes == code
-            out[here] = fc.forward(x[here], ps)
-            pooled &= ~here
-        if pooled.any():
-            out[pooled] = fc.forward(x[pooled])
-        return out
+        return scale_with(x, fc, self._group_keys, rows)
 
     def range_info(self, label: str, low: float, high: float, *, scaled: bool) -> RangeInfo:
         """Count and bounds, in both units, of the values in [low, high] on either side."""
         if low > high:
             low, high = high, low
         fc = self.fitted_column(label)
+        unknown = self.fitting(label)  # no scaled bounds yet
         if scaled and fc is not None:
             edges = self.scaled_edges(label)
             finite = edges[np.isfinite(edges)]
@@ -528,6 +694,8 @@ class Session:
         else:
             if fc is not None:
                 slo, shi = (float(v) for v in fc.forward(np.array([low, high])))
+            elif unknown:
+                slo = shi = float("nan")
             else:
                 slo, shi = low, high
         srt = self.sorted_values(label)
@@ -589,6 +757,8 @@ class Session:
 
     def describe_fit(self, label: str) -> str:
         """The fitted parameters in one plain line, e.g. 'mean 75.5, sd 36.7 (sample sd)'."""
+        if self.fitting(label):
+            return "Fitting…"
         state = self.fit_state(label)
         if state is None:
             return "Kept as it is."
