@@ -72,3 +72,31 @@ def test_bars_in_range_agree_across_the_link():
     mapped = mapped_edges(h.edges, fc)
     ends = fc.forward(np.array([low, high]))  # ...is the same bars in scaled units
     assert bars_in_range(h.edges, low, high) == bars_in_range(mapped, ends[0], ends[1])
+
+
+@pytest.mark.parametrize(
+    ("values", "bins", "width"),
+    [
+        (np.arange(5, 31), 30, 1.0),  # tree ages 5..30: one bar per year
+        (np.arange(0, 39), 30, 2.0),  # trap counts 0..38: 39 numbers, bars two wide
+        (np.array([0.0, 0.0, 1.0, 7.0, np.nan]), 30, 1.0),
+    ],
+)
+def test_whole_numbers_get_whole_width_bars_centred_on_them(values, bins, width):
+    h = histogram(values.astype(float), bins=bins)
+    assert len(h.counts) <= bins
+    np.testing.assert_allclose(np.diff(h.edges), width)
+    finite = values[np.isfinite(values)]
+    assert h.edges[0] == finite.min() - 0.5 and h.edges[-1] >= finite.max() + 0.5
+    assert h.counts.sum() == finite.size
+    if width == 1.0 and np.array_equal(finite, np.arange(finite.min(), finite.max() + 1)):
+        assert (h.counts == 1).all()  # consecutive numbers: no empty bar between full ones
+
+
+def test_integer_edges_stay_inside_the_domain_of_log_and_box_cox():
+    # Counts from 1 up: the first edge is 0.5, still positive, so every mapped edge exists.
+    counts = np.arange(1.0, 60.0)
+    h = histogram(counts)
+    for method in ("log", "boxcox"):
+        fc = fit_column(counts, ColumnChoice(method), column="c")
+        assert np.isfinite(mapped_edges(h.edges, fc)).all()
