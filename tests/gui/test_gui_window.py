@@ -646,3 +646,12 @@ def test_click_point_helper_is_inside_the_view(qtbot, opened):
     rect = opened.columns.visualRect(opened.columns.model_.index(3, 0))
     assert opened.columns.viewport().rect().contains(rect.center())
     assert isinstance(rect.center(), QPoint)
+
+
+def test_the_application_icon_is_installed_and_loads(qapp):
+    from scalewright.gui.app import app_icon, make_app
+
+    icon = app_icon()
+    assert not icon.isNull()
+    assert not icon.pixmap(32, 32).isNull()  # the SVG really renders
+    assert not make_app().windowIcon().isNull()

@@ -9,6 +9,15 @@ ORGANIZATION = "Scalewright"
 APPLICATION = "Scalewright"
 
 
+def app_icon():
+    """The application's icon (resources/scalewright.svg, installed as scalewright.resources)."""
+    from importlib.resources import files
+
+    from PySide6.QtGui import QIcon
+
+    return QIcon(str(files("scalewright.resources").joinpath("scalewright.svg")))
+
+
 def make_app(argv: list[str] | None = None):
     """The QApplication (created once), with the calm theme and our names for QSettings."""
     from PySide6.QtWidgets import QApplication
@@ -21,6 +30,7 @@ def make_app(argv: list[str] | None = None):
     app.setOrganizationName(ORGANIZATION)
     app.setApplicationName(APPLICATION)
     app.setApplicationDisplayName(APPLICATION)
+    app.setWindowIcon(app_icon())
     theme.apply_theme(app)
     theme.configure_plots()
     return app
