@@ -24,7 +24,9 @@ def test_xls_reads_with_kinds_dates_and_text():
     assert data["tree_code"].tolist() == ["000412", "000413", "000414"]
     np.testing.assert_array_equal(data["yield_kg"].to_numpy(float), [81.5, 55.25, np.nan])
     assert data["planted_on"].tolist() == [
-        pd.Timestamp("2006-03-27"), pd.Timestamp("1998-04-15"), pd.Timestamp("2010-05-08")
+        pd.Timestamp("2006-03-27"),
+        pd.Timestamp("1998-04-15"),
+        pd.Timestamp("2010-05-08"),
     ]
     # formula-like text stays the text it was
     assert data["note"].iloc[0] == "=SUM(A1)"

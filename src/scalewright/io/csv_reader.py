@@ -1,14 +1,18 @@
 """Read delimited text files (CSV, TSV, TXT).
 
 The bytes are brought to UTF-8 once; the layout (delimiter, header row, number marks) is
-detected on a sample; the rows are split by pyarrow's CSV reader with every cell kept as
-text; ``kinds`` then decides each column's type. Rows of the wrong width are reported by
-their line number in the file, found with a quote-aware numpy scan.
+detected on a sample; the rows are split by pyarrow's CSV reader; ``kinds`` then decides
+each column's type. Cells are kept as text, except in columns whose sample holds decimal
+numbers: those are parsed as float64 by the reader itself, and kept only when the whole
+column shows nothing the text rules would treat otherwise (else they are read as text
+after all), so the result is always the one the text rules give. Rows of the wrong width
+are reported by their line number in the file, found with a quote-aware numpy scan.
 """
 
 from __future__ import annotations
 
 import codecs
+import re
 from pathlib import Path
 from typing import NamedTuple
 
@@ -19,7 +23,7 @@ import pyarrow.csv as pacsv
 
 from ..errors import Cancelled, ReadError
 from . import detect as det
-from .kinds import classify_text
+from .kinds import arrow_to_numpy, classify_arrow, classify_text, decimal_comma_note
 from .labels import unique_labels
 from .options import CancelCheck, ColumnKind, Progress, ReadOptions, Table
 
@@ -34,9 +38,44 @@ def read_text_table(
     cancelled: CancelCheck | None = None,
     preview_rows: int | None = None,
 ) -> Table:
-    """Read the file (or, with ``preview_rows``, only its start) into a Table."""
-    notes: list[str] = []
+    """Read the file (or, with ``preview_rows``, only its start) into a Table.
+
+    A big UTF-8 file is examined from its start and its rows are then parsed by pyarrow
+    straight from the disk, which overlaps reading with parsing and spares a copy of the
+    whole file; whatever that way cannot settle exactly (another encoding, a header far
+    down, a row that does not split) is read again from memory as below.
+    """
+    if preview_rows is None:
+        head = _read_bytes(path, STREAM_HEAD_BYTES)
+        if len(head) < STREAM_HEAD_BYTES:  # the whole file
+            return _read_text(path, options, head, None, False, progress, cancelled)
+        try:
+            return _read_text(path, options, head, None, True, progress, cancelled)
+        except _ReadWhole:
+            pass
     raw = _read_bytes(path, det.SAMPLE_BYTES * 4 if preview_rows is not None else None)
+    return _read_text(path, options, raw, preview_rows, False, progress, cancelled)
+
+
+# Files at least this long are parsed from the disk (see read_text_table); the start read
+# first holds the detection sample with room for title lines above the header.
+STREAM_HEAD_BYTES = det.SAMPLE_BYTES * 4
+
+
+class _ReadWhole(Exception):
+    """The streamed read cannot give the exact result: read the whole file instead."""
+
+
+class _FileTail(NamedTuple):
+    """The rest of a file from byte ``start``, for pyarrow to read from the disk."""
+
+    path: Path
+    start: int
+
+
+def _read_text(path, options, raw, preview_rows, streamed, progress, cancelled) -> Table:
+    """``raw`` is the whole file, or with ``preview_rows`` or ``streamed`` its start."""
+    notes: list[str] = []
     if not raw:
         raise ReadError(path, "the file is empty")
     try:
@@ -46,17 +85,24 @@ def read_text_table(
             encoding, why = det.detect_encoding(raw)
     except det.NotText:
         raise ReadError(path, "this is not a text table (it contains binary data)") from None
-    truncated = preview_rows is not None and len(raw) == det.SAMPLE_BYTES * 4
+    truncated = streamed or (preview_rows is not None and len(raw) == det.SAMPLE_BYTES * 4)
+    if streamed and _codec_name(encoding) not in _UTF8 | {"utf-8-sig"}:
+        raise _ReadWhole()
     try:
         data = _to_utf8(path, raw, encoding, partial=truncated)
     except ReadError:
+        if streamed:
+            raise _ReadWhole() from None
         if options.encoding is not None or encoding != "utf-8":
             raise
         # UTF-8 at the start, something else further down: a single-byte code page.
         encoding, why = det.single_byte(raw)
         data = _to_utf8(path, raw, encoding, partial=truncated)
+    skipped = len(raw) - len(data)  # a byte-order mark (only ever in streamed UTF-8)
     if truncated:
         data = data[: data.rfind(b"\n") + 1] or data
+    if streamed and b"\n" not in data:
+        raise _ReadWhole()
     if b"\n" not in data and b"\r" in data:
         data = data.replace(b"\r", b"\n")  # classic Mac OS line ends
     if why:
@@ -79,6 +125,8 @@ def read_text_table(
         header_row = options.header_row
 
     offset = _line_offset(data, header_row)
+    if streamed and (offset is None or offset + 2 * det.SAMPLE_BYTES > len(data)):
+        raise _ReadWhole()  # the header is too far down for a full sample after it
     if offset is None or not data[offset : offset + det.SAMPLE_BYTES].strip():
         raise ReadError(path, f"row {header_row + 1} is beyond the end of the file")
     body = memoryview(data)[offset:]
@@ -109,7 +157,11 @@ def read_text_table(
 
     if progress is not None:
         progress(0.1)
-    if len(starts) < 2:
+    if streamed and len(starts) < 3:
+        raise _ReadWhole()  # rows too long for the stretch to hold a sample
+    if streamed:
+        rest = _FileTail(Path(path), skipped + offset + int(starts[1]))
+    elif len(starts) < 2:
         rest = body[len(body) :]
     elif preview_rows is not None and preview_rows + 1 < len(starts):
         rest = body[int(starts[1]) : int(starts[preview_rows + 1])]
@@ -118,10 +170,21 @@ def read_text_table(
     if cancelled is not None and cancelled():
         raise Cancelled()
     quoted = data.find(b'"', offset) >= 0
+    if streamed and not quoted:
+        # Whether a quote comes further down decides how pyarrow splits the rows, and a
+        # file without quotes splits faster, so such a file is read whole to find out.
+        raise _ReadWhole()
+    floats: set[int] = set()
+    if preview_rows is None and head_len < len(body) and len(starts) > 2:
+        # The sample stops before the last scanned row, which may continue past the stretch.
+        sample = body[int(starts[1]) : int(starts[-1])]
+        floats = _float_columns(sample, width, delimiter, quoted, scan.spaces, decimal, thousands)
     try:
-        frame = _parse_body(rest, width, delimiter, quoted, skip_spaces=scan.spaces)
-    except pa.ArrowInvalid as err:
-        frame = _after_parse_error(path, rest, err, width, delimiter, quoted, header_row, scan)
+        frame = _read_body(path, rest, width, delimiter, quoted, header_row, scan, floats, decimal)
+    except (pa.ArrowException, OSError):
+        if not streamed:
+            raise
+        raise _ReadWhole() from None
     used = ReadOptions(encoding, delimiter, decimal, thousands, header_row, None)
     return build_table(
         path,
@@ -169,6 +232,13 @@ def _read_bytes(path: Path, limit: int | None) -> bytes:
         raise ReadError(path, f"the file cannot be opened ({err.strerror})") from None
 
 
+def _codec_name(encoding: str) -> str | None:
+    try:
+        return codecs.lookup(encoding).name
+    except LookupError:
+        return None
+
+
 def _to_utf8(path: Path, raw: bytes, encoding: str, *, partial: bool) -> bytes:
     """The file's bytes as UTF-8 without a byte-order mark."""
     try:
@@ -178,7 +248,8 @@ def _to_utf8(path: Path, raw: bytes, encoding: str, *, partial: bool) -> bytes:
     if name in _UTF8 or name == "utf-8-sig":
         data = raw[3:] if raw.startswith(codecs.BOM_UTF8) else raw
         try:
-            data.decode("utf-8")
+            if not data.isascii():  # ASCII is UTF-8; the check is a fast scan
+                data.decode("utf-8")
         except UnicodeDecodeError as err:
             if not (partial and err.reason == "unexpected end of data"):
                 raise ReadError(
@@ -273,18 +344,35 @@ def _check_widths(path, scan, rows, width, header_row) -> None:
         )
 
 
-def _parse_body(rest, width, delimiter, quoted, *, skip_spaces) -> pd.DataFrame:
-    """Split the data rows into string columns with pyarrow's CSV reader.
+def _parse_body(
+    rest, width, delimiter, quoted, *, skip_spaces, floats=(), decimal=".", only=None
+) -> pa.Table:
+    """Split the data rows into columns named "0", "1", ... with pyarrow's CSV reader.
 
-    Every cell is kept as text so that leading zeros and long codes survive; pyarrow builds
+    Cells are kept as text so that leading zeros and long codes survive; pyarrow builds
     those strings without Python objects, about ten times faster than the pandas C reader
-    with ``dtype=str`` (``benchmarks/bench_io.py``). Rows of the wrong width raise.
+    with ``dtype=str`` (``benchmarks/bench_io.py``). The columns in ``floats`` are read as
+    numbers with ``decimal`` directly, which saves building and casting their text; a cell
+    there that is not a number raises. ``only`` reads just those columns. Rows of the wrong
+    width raise.
     """
-    if not len(rest):
-        return pd.DataFrame({i: pd.Series([], dtype="str") for i in range(width)})
     names = [str(i) for i in range(width)]
-    table = pacsv.read_csv(
-        pa.BufferReader(pa.py_buffer(rest)),
+    streamed = isinstance(rest, _FileTail)
+    if not streamed and not len(rest):
+        return pa.table({name: pa.array([], pa.string()) for name in names})
+    types = dict.fromkeys(names, pa.string())
+    types.update((str(i), pa.float64()) for i in floats)
+    if streamed:
+        with pa.OSFile(str(rest.path)) as source:
+            source.seek(rest.start)
+            return _arrow_csv(source, names, types, delimiter, quoted, skip_spaces, decimal, only)
+    source = pa.BufferReader(pa.py_buffer(rest))
+    return _arrow_csv(source, names, types, delimiter, quoted, skip_spaces, decimal, only)
+
+
+def _arrow_csv(source, names, types, delimiter, quoted, skip_spaces, decimal, only) -> pa.Table:
+    return pacsv.read_csv(
+        source,
         read_options=pacsv.ReadOptions(column_names=names),
         parse_options=pacsv.ParseOptions(
             delimiter=delimiter,
@@ -296,15 +384,93 @@ def _parse_body(rest, width, delimiter, quoted, *, skip_spaces) -> pd.DataFrame:
             invalid_row_handler=_skip_blank_row if skip_spaces else None,
         ),
         convert_options=pacsv.ConvertOptions(
-            column_types=dict.fromkeys(names, pa.string()),
+            column_types=types,
             strings_can_be_null=True,
             quoted_strings_can_be_null=True,
             null_values=[""],
+            decimal_point=decimal,
+            # Bytes in memory were checked (or made) UTF-8 on loading; a file read from the
+            # disk is checked here.
+            check_utf8=isinstance(source, pa.OSFile),
+            include_columns=None if only is None else [str(i) for i in only],
         ),
     )
-    frame = table.to_pandas()
-    frame.columns = range(width)
-    return frame
+
+
+# How often a number column that its sample promised may turn out to hold text before the
+# whole file is read as text instead (each discovery costs one more parse).
+_NUMBER_RETRIES = 3
+_FAILED_COLUMN = re.compile(r"In CSV column #(\d+):.*CSV conversion error to double")
+
+
+def _float_columns(sample, width, delimiter, quoted, skip_spaces, decimal, thousands) -> set[int]:
+    """Columns whose sample rows read, by the rules of ``kinds``, as float64 numbers that
+    a direct number parse gives identically (see ``_direct_numbers_hold``)."""
+    try:
+        table = _parse_body(sample, width, delimiter, quoted, skip_spaces=skip_spaces)
+    except pa.ArrowInvalid:
+        return set()
+    comma_note = [decimal_comma_note("c")] if decimal == "," else []
+    found = set()
+    for i in range(width):
+        series, kind, notes = classify_arrow(table.column(i), "c", decimal, thousands)
+        if kind is not ColumnKind.NUMBER or series.dtype != np.float64 or notes != comma_note:
+            continue
+        if _direct_numbers_hold(series.to_numpy(), series.isna().sum()):
+            found.add(i)
+    return found
+
+
+def _direct_numbers_hold(x: np.ndarray, nulls: int) -> bool:
+    """Numbers read straight from the file match the text rules when none is a whole number
+    and all are finite (else "nan"/"inf" words, leading-zero or long digit codes and
+    whole-number columns could hide behind them). Those columns are read as text."""
+    if int(np.count_nonzero(~np.isfinite(x))) != nulls:
+        return False
+    return not np.any(x == np.floor(x))
+
+
+def _read_body(path, rest, width, delimiter, quoted, header_row, scan, floats, decimal):
+    """The data rows as an Arrow table: ``floats`` columns as float64 where the whole
+    column bears that out, every other column (and every column on any doubt) as text."""
+    floats = set(floats)
+    for _ in range(_NUMBER_RETRIES):
+        if not floats:
+            break
+        try:
+            table = _parse_body(
+                rest,
+                width,
+                delimiter,
+                quoted,
+                skip_spaces=scan.spaces,
+                floats=floats,
+                decimal=decimal,
+            )
+        except pa.ArrowInvalid as err:
+            failed = _FAILED_COLUMN.search(str(err))
+            if failed is None or int(failed.group(1)) not in floats:
+                break  # not a number problem: the text read below names it
+            floats.discard(int(failed.group(1)))
+            continue
+        doubtful = [
+            i
+            for i in sorted(floats)
+            if not _direct_numbers_hold(arrow_to_numpy(table.column(i)), table.column(i).null_count)
+        ]
+        if doubtful:
+            text = _parse_body(
+                rest, width, delimiter, quoted, skip_spaces=scan.spaces, only=doubtful
+            )
+            for i in doubtful:
+                table = table.set_column(i, str(i), text.column(str(i)))
+        return table
+    try:
+        return _parse_body(rest, width, delimiter, quoted, skip_spaces=scan.spaces)
+    except pa.ArrowInvalid as err:
+        if isinstance(rest, _FileTail):
+            raise  # the whole file is read into memory to name the row
+        return _after_parse_error(path, rest, err, width, delimiter, quoted, header_row, scan)
 
 
 def _after_parse_error(path, rest, err, width, delimiter, quoted, header_row, head_scan):
@@ -336,7 +502,7 @@ def _skip_blank_row(row) -> str:
 
 def build_table(
     path: Path,
-    frame: pd.DataFrame,
+    frame: pd.DataFrame | pa.Table,
     headers: list[str],
     used: ReadOptions,
     notes: list[str],
@@ -352,18 +518,18 @@ def build_table(
 ) -> Table:
     """Drop empty edge rows/columns, classify every column and attach unique labels.
 
+    ``frame`` is a DataFrame (workbooks) or the Arrow table of a text file, whose columns
+    are strings, or float64 where the file was read as numbers directly (``_read_body``).
     Progress moves through ``span`` column by column.
     """
+    cells = _Cells(frame)
     # Trailing rows with no value at all (left behind by spreadsheet exports).
-    filled = frame.notna().to_numpy().any(axis=1) if frame.shape[1] else np.zeros(0, bool)
-    if len(filled) and not filled[-1]:
-        last = np.flatnonzero(filled)
-        frame = frame.iloc[: (int(last[-1]) + 1 if len(last) else 0)]
+    cells.drop_empty_tail()
     # Columns with no header text and no values at the right edge are not part of the table.
-    keep = list(range(frame.shape[1]))
-    while keep and not headers[keep[-1]].strip() and not frame.iloc[:, keep[-1]].notna().any():
+    keep = list(range(cells.width))
+    while keep and not headers[keep[-1]].strip() and not cells.has_values(keep[-1]):
         keep.pop()
-    dropped = frame.shape[1] - len(keep)
+    dropped = cells.width - len(keep)
     if dropped:
         notes.append(f"{dropped} empty column(s) at the right edge were left out.")
     headers = [headers[i] for i in keep]
@@ -377,17 +543,71 @@ def build_table(
             progress(span[0] + (span[1] - span[0]) * done / len(keep))
         if classify is not None:
             series, kind, col_notes = classify(i, label)
+        elif isinstance(cells.frame, pa.Table):
+            series, kind, col_notes = _classify_read(
+                cells.frame.column(i), label, decimal, thousands
+            )
         else:
             series, kind, col_notes = classify_text(
-                frame.iloc[:, i], label, decimal, thousands, from_workbook=from_workbook
+                cells.frame.iloc[:, i], label, decimal, thousands, from_workbook=from_workbook
             )
         columns[label] = series.reset_index(drop=True)
         kinds[label] = kind
         notes.extend(col_notes)
-    data = pd.DataFrame(columns, index=pd.RangeIndex(len(frame)))
+    # copy=False keeps each column as built (no stacking of same-dtype columns into one
+    # block, which would copy every number column once more; the engine reads by column).
+    data = pd.DataFrame(columns, index=pd.RangeIndex(cells.rows), copy=False)
     if list(data.columns) != labels:  # no columns at all
-        data = pd.DataFrame(index=pd.RangeIndex(len(frame)))
+        data = pd.DataFrame(index=pd.RangeIndex(cells.rows))
     renamed = [f"'{h}' as '{lab}'" for h, lab in zip(headers, labels, strict=True) if h != lab]
     if renamed:
         notes.append("Column names repeated or blank, shown as: " + ", ".join(renamed) + ".")
     return Table(data, headers, kinds, Path(path), used, notes, sheets)
+
+
+def _classify_read(column: pa.ChunkedArray, label: str, decimal: str, thousands: str):
+    """A text-file column: numbers read directly are final (``_direct_numbers_hold``
+    checked them), text goes through the rules of ``kinds``."""
+    if pa.types.is_floating(column.type):
+        notes = [decimal_comma_note(label)] if decimal == "," else []
+        return pd.Series(arrow_to_numpy(column)), ColumnKind.NUMBER, notes
+    return classify_arrow(column, label, decimal, thousands)
+
+
+class _Cells:
+    """Row and column tests over either a DataFrame or an Arrow table."""
+
+    def __init__(self, frame: pd.DataFrame | pa.Table) -> None:
+        self.frame = frame
+
+    @property
+    def rows(self) -> int:
+        return len(self.frame) if isinstance(self.frame, pd.DataFrame) else self.frame.num_rows
+
+    @property
+    def width(self) -> int:
+        return self.frame.shape[1]
+
+    def drop_empty_tail(self) -> None:
+        frame = self.frame
+        if not self.width or not self.rows:
+            return
+        if isinstance(frame, pd.DataFrame):
+            filled = frame.notna().to_numpy().any(axis=1)
+        else:
+            if any(col[len(col) - 1].is_valid for col in frame.columns):
+                return  # the usual case, told from the last row alone
+            filled = np.zeros(self.rows, bool)
+            for col in frame.columns:
+                filled |= np.asarray(col.is_valid())
+        if filled[-1]:
+            return
+        last = np.flatnonzero(filled)
+        end = int(last[-1]) + 1 if len(last) else 0
+        self.frame = frame.iloc[:end] if isinstance(frame, pd.DataFrame) else frame.slice(0, end)
+
+    def has_values(self, i: int) -> bool:
+        if isinstance(self.frame, pd.DataFrame):
+            return bool(self.frame.iloc[:, i].notna().any())
+        column = self.frame.column(i)
+        return column.null_count < len(column)

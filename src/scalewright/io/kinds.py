@@ -72,26 +72,32 @@ def _all_match(values: pd.Series, pattern: str, head: int = 1000) -> bool:
     return len(values) <= head or bool(values.iloc[head:].str.fullmatch(pattern).all())
 
 
-def _plain_numbers(s: pd.Series) -> pd.Series | None:
+def _all_contain(values: pd.Series, pattern: str, head: int = 1000) -> bool:
+    """Every value contains the pattern, tried on the first rows first as ``_all_match``."""
+    if not bool(values.iloc[:head].str.contains(pattern).all()):
+        return False
+    return len(values) <= head or bool(values.iloc[head:].str.contains(pattern).all())
+
+
+def _plain_numbers(arr: pa.Array | pa.ChunkedArray) -> pd.Series | None:
     """The common case at full speed: every cell is a plain number such as ``-12.5``.
 
     Returns None whenever the column needs a closer look (codes, marks, words), and the
-    general rules below then decide.
+    general rules below then decide. The text checks run on the Arrow buffers: once the
+    cast has succeeded every cell is ASCII, so bytes are characters.
     """
-    arr = pa.array(s, type=pa.large_string())
     if arr.null_count == len(arr):
         return None
     try:
         floats = pc.cast(arr, pa.float64())
     except (pa.ArrowInvalid, pa.ArrowNotImplementedError):
         return None
-    x = floats.to_numpy(zero_copy_only=False)
-    present = ~np.asarray(arr.is_null())
-    if not np.isfinite(x[present]).all():
+    x = arrow_to_numpy(floats)
+    if int(np.count_nonzero(~np.isfinite(x))) != arr.null_count:
         return None  # "nan"/"inf" written out: leave them to the marker rules
     digits_only = pc.ascii_is_decimal(arr)
     if pc.any(digits_only).as_py():
-        widths = pc.filter(pc.utf8_length(arr), digits_only)
+        widths = pc.filter(pc.binary_length(arr), digits_only)
         shortest, longest = pc.min_max(widths).values()
         if longest.as_py() > MAX_NUMBER_DIGITS:
             return None  # long digit strings are codes
@@ -100,19 +106,95 @@ def _plain_numbers(s: pd.Series) -> pd.Series | None:
             and shortest.as_py() == longest.as_py() >= FIXED_WIDTH_CODE_DIGITS
         ):
             return None
-    if (
-        pc.any(pc.starts_with(arr, "0")).as_py()
-        and pc.any(pc.match_substring_regex(arr, r"^[+-]?0[0-9]")).as_py()
-    ):
+    text = _StringBytes(arr)
+    if text.any_leading_zero():
         return None
     # Arrow's cast accepts exactly [+-]digits[.digits][e[+-]digits] (no spaces, no marks),
     # the plain form this shortcut is for.
-    out = pd.Series(x, index=s.index)
-    if any(pc.any(pc.match_substring(arr, mark)).as_py() for mark in (".", "e", "E")):
+    out = pd.Series(x)
+    if text.contains_any(b".eE"):
         return out
-    if pc.max(pc.utf8_length(arr)).as_py() > MAX_NUMBER_DIGITS:
+    if text.longest() > MAX_NUMBER_DIGITS:
         return None  # a signed whole number this long may not fit a double exactly
     return out.astype("Int64")
+
+
+def arrow_to_numpy(arr: pa.Array | pa.ChunkedArray) -> np.ndarray:
+    """Values as numpy (nulls as NaN/NaT), for one array or many chunks."""
+    if isinstance(arr, pa.ChunkedArray):
+        if arr.num_chunks == 1:
+            arr = arr.chunk(0)
+        else:
+            return arr.to_numpy()
+    return arr.to_numpy(zero_copy_only=False)
+
+
+class _StringBytes:
+    """The characters of a string column seen as raw bytes, chunk by chunk.
+
+    Null cells must hold no bytes (Arrow writes them so); anything else is read through
+    Arrow's own functions instead.
+    """
+
+    def __init__(self, arr: pa.Array | pa.ChunkedArray) -> None:
+        chunks = arr.chunks if isinstance(arr, pa.ChunkedArray) else [arr]
+        self.parts: list[tuple[np.ndarray, np.ndarray, np.ndarray | None]] = []
+        self.plain = True
+        for chunk in chunks:
+            if len(chunk) == 0:
+                continue
+            kind = np.int64 if pa.types.is_large_string(chunk.type) else np.int32
+            _, offs_buf, data_buf = chunk.buffers()
+            offs = np.frombuffer(offs_buf, dtype=kind)[chunk.offset : chunk.offset + len(chunk) + 1]
+            data = (
+                np.frombuffer(data_buf, dtype=np.uint8)
+                if data_buf is not None
+                else np.zeros(0, np.uint8)
+            )
+            valid = None if chunk.null_count == 0 else np.asarray(chunk.is_valid())
+            if valid is not None and np.any(np.diff(offs)[~valid]):
+                self.plain = False
+            self.parts.append((offs, data, valid))
+        self.arr = arr
+
+    def contains_any(self, marks: bytes) -> bool:
+        if not self.plain:
+            return any(pc.any(pc.match_substring(self.arr, chr(m))).as_py() for m in marks)
+        for offs, data, _ in self.parts:
+            stretch = data[offs[0] : offs[-1]].tobytes()
+            if any(stretch.find(bytes([m])) >= 0 for m in marks):
+                return True
+        return False
+
+    def longest(self) -> int:
+        """Longest cell in bytes (characters for ASCII text)."""
+        if not self.plain:
+            return int(pc.max(pc.binary_length(self.arr)).as_py() or 0)
+        return max((int(np.diff(offs).max()) for offs, _, _ in self.parts), default=0)
+
+    def any_leading_zero(self) -> bool:
+        """Some cell starts with ``[+-]?0`` followed by a digit."""
+        if not self.plain:
+            return bool(
+                pc.any(pc.starts_with(self.arr, "0")).as_py()
+                and pc.any(pc.match_substring_regex(self.arr, r"^[+-]?0[0-9]")).as_py()
+            )
+        for offs, data, _ in self.parts:
+            start, length = offs[:-1], np.diff(offs)
+            two = start[length >= 2]
+            first, second = data[two], data[two + 1]
+            if np.any((first == ord("0")) & (second - ord("0") < 10)):
+                return True
+            signed = ((first == ord("+")) | (first == ord("-"))) & (second == ord("0"))
+            three = two[signed & (length[length >= 2] >= 3)]
+            if np.any(data[three + 2] - ord("0") < 10):
+                return True
+        return False
+
+
+def decimal_comma_note(label: str) -> str:
+    """The note for a column whose numbers were written with a decimal comma alone."""
+    return f"Column '{label}': numbers written with a decimal comma were converted."
 
 
 def empty_column(n: int, index=None) -> pd.Series:
@@ -129,9 +211,82 @@ def classify_text(
     """
     s = s.astype("str")
     if not from_workbook:
-        fast = _plain_numbers(s)
+        fast = _plain_numbers(pa.array(s, type=pa.large_string()))
         if fast is not None:
-            return fast, ColumnKind.NUMBER, []
+            return fast.set_axis(s.index), ColumnKind.NUMBER, []
+    return _classify_rest(s, label, decimal, thousands, from_workbook)
+
+
+def classify_arrow(
+    arr: pa.Array | pa.ChunkedArray, label: str, decimal: str = ".", thousands: str = ""
+) -> tuple[pd.Series, ColumnKind, list[str]]:
+    """Classify a column of a delimited text file held as Arrow strings (missing as null).
+
+    The result is the one ``classify_text`` gives for the same cells; plain numbers, digit
+    codes and ISO dates are decided on the Arrow buffers without building Python objects,
+    and every other column takes the general rules.
+    """
+    n = len(arr)
+    if arr.null_count == n:
+        return empty_column(n), ColumnKind.EMPTY, []
+    fast = _plain_numbers(arr)
+    if fast is not None:
+        return fast, ColumnKind.NUMBER, []
+    if _digit_code(arr):
+        return text_series(arr), ColumnKind.IDENTIFIER, []
+    dates = _iso_dates(arr)
+    if dates is not None:
+        return dates, ColumnKind.DATE, []
+    return _classify_rest(text_series(arr), label, decimal, thousands, False)
+
+
+def text_series(arr: pa.Array | pa.ChunkedArray) -> pd.Series:
+    """Arrow strings as a pandas ``str`` column with a 0-based index."""
+    return arr.to_pandas().astype("str")
+
+
+def _digit_code(arr: pa.Array | pa.ChunkedArray) -> bool:
+    """Every cell is a digit string and the digit rules of ``_classify_rest`` make the
+    column an identifier (leading zero, too long, or all one width of 8 digits or more)."""
+    digits = pc.ascii_is_decimal(arr)
+    if not pc.all(digits).as_py():
+        return False
+    shortest, longest = (v.as_py() for v in pc.min_max(pc.binary_length(arr)).values())
+    if not shortest:
+        return False  # an empty string is a blank cell, not a digit string
+    if _StringBytes(arr).any_leading_zero():
+        return True
+    if longest > MAX_NUMBER_DIGITS:
+        return True
+    present = len(arr) - arr.null_count
+    return present > 1 and shortest == longest >= FIXED_WIDTH_CODE_DIGITS
+
+
+def _iso_dates(arr: pa.Array | pa.ChunkedArray) -> pd.Series | None:
+    """Every cell is a plain ISO date (``2019-04-03``) that Arrow can read; else None.
+
+    For such cells Arrow's ISO 8601 cast and pandas' ISO8601 parser give the same
+    midnights; anything Arrow refuses (year 0, Feb 30) goes the general way."""
+    text = _StringBytes(arr)
+    if not text.plain or not text.parts:
+        return None
+    for offs, data, valid in text.parts:
+        length = np.diff(offs)
+        if np.any(length[valid] != 10 if valid is not None else length != 10):
+            return None
+        grid = data[offs[0] : offs[-1]].reshape(-1, 10)
+        digits = grid[:, [0, 1, 2, 3, 5, 6, 8, 9]] - ord("0") < 10
+        if not (digits.all() and (grid[:, [4, 7]] == ord("-")).all()):
+            return None
+    try:
+        stamps = pc.cast(arr, pa.timestamp("us"))
+    except (pa.ArrowInvalid, pa.ArrowNotImplementedError):
+        return None
+    return pd.Series(arrow_to_numpy(stamps).astype(DATE_DTYPE))
+
+
+def _classify_rest(s: pd.Series, label, decimal, thousands, from_workbook):
+    """The general rules, for columns the plain-number shortcut did not settle."""
     stripped = s.str.strip()
     blank = stripped.isna() | (stripped == "")
     values = stripped[~blank]
@@ -163,8 +318,8 @@ def classify_text(
         return dates
 
     if (
-        _all_match(values, _CODE.pattern)
-        and bool(values.str.contains(r"\d").all())
+        _all_contain(values, r"\d")  # the cheapest of the three tests first
+        and _all_match(values, _CODE.pattern)
         and bool(values.str.contains(r"[A-Za-z]").any())
     ):
         return s, ColumnKind.IDENTIFIER, []
