@@ -6,8 +6,9 @@ and the command line do to data goes through these calls.
 
 from .diagnostics import ColumnSummary, Suggestion, describe, suggest
 from .histogram import Histogram, bars_in_range, histogram, mapped_edges
-from .methods import METHODS, FitError, Method, OptionSpec, get_method
+from .methods import METHODS, FitError, Method, OptionSpec, get_method, log_shift, robust_scale
 from .plan import (
+    MAX_GROUPS,
     ColumnChoice,
     ColumnReport,
     FitSettings,
@@ -25,6 +26,7 @@ from .plan import (
 )
 
 __all__ = [
+    "MAX_GROUPS",
     "METHODS",
     "ColumnChoice",
     "ColumnReport",
@@ -48,8 +50,11 @@ __all__ = [
     "get_method",
     "group_codes",
     "histogram",
+    "log_shift",
     "mapped_edges",
     "restore",
+    "robust_scale",
+    "rows_by_code",
     "suggest",
     "value_key",
 ]

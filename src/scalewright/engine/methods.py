@@ -398,24 +398,19 @@ class Robust(Method):
 
     def fit(self, x, options):
         q1, median, q3 = numerics.quantiles(x, (0.25, 0.5, 0.75))
-        scale = q3 - q1
+        lo, hi = _finite_range(x)
+        scale = robust_scale(q1, median, q3, lo, hi)
         warnings = []
-        if not scale > 0:
+        if not q3 - q1 > 0:
             warnings.append(
                 "the middle half of the values is a single value (IQR 0); dividing by 1 instead"
             )
-            scale = 1.0
-        else:
-            lo, hi = _finite_range(x)
-            with np.errstate(over="ignore"):
-                widest = max(median - lo, hi - median) / scale
-            if not math.isfinite(widest):
-                warnings.append(
-                    f"the middle half of the values is so narrow (IQR {scale!r}) that the "
-                    "other values would scale beyond the range of floating-point numbers; "
-                    "dividing by 1 instead"
-                )
-                scale = 1.0
+        elif scale != q3 - q1:
+            warnings.append(
+                f"the middle half of the values is so narrow (IQR {q3 - q1!r}) that the "
+                "other values would scale beyond the range of floating-point numbers; "
+                "dividing by 1 instead"
+            )
         return FitResult(
             {
                 "median": median,
@@ -425,6 +420,7 @@ class Robust(Method):
                 "quantile_rule": numerics.QUANTILE_RULE,
             },
             warnings,
+            data_range=(lo, hi),
         )
 
     passes_nonfinite = True
@@ -440,6 +436,20 @@ class Robust(Method):
         np.multiply(y, params["scale"], out=out)
         out += params["median"]
         return out
+
+
+def robust_scale(q1: float, median: float, q3: float, lo: float, hi: float) -> float:
+    """What robust scaling divides by: the IQR ``q3 - q1``, or 1 when the IQR is 0 or so
+    small that the values from ``lo`` to ``hi`` would scale beyond the float range.
+
+    The fit and the project file's validation both call this, so they always agree.
+    """
+    scale = q3 - q1
+    if not scale > 0:
+        return 1.0
+    with np.errstate(over="ignore"):
+        widest = max(median - lo, hi - median) / scale
+    return scale if math.isfinite(widest) else 1.0
 
 
 class MaxAbs(Method):
@@ -477,6 +487,28 @@ _LOG = {
 }
 
 
+def log_shift(lo: float) -> float:
+    """The shift the logarithm adds when the smallest fitted value ``lo`` is 0 or below.
+
+    Common practice: ``1 - lo``, so that the smallest value becomes 1 (its log is 0). When
+    ``lo`` is so large in size that ``1 - lo`` rounds to ``-lo`` (from about -9e15 on), the
+    shift is raised to the next floats until ``lo + shift`` is above 0. The fit and the
+    project file's validation both call this. FitError when no float shift can do it.
+    """
+    shift = 1.0 - lo
+    for _ in range(4):  # one step is enough: lo + shift is then one unit in the last place
+        if lo + shift > 0 or not math.isfinite(shift):
+            break
+        with np.errstate(over="ignore"):  # past the largest float: inf, refused below
+            shift = float(np.nextafter(shift, math.inf))
+    if not (math.isfinite(shift) and lo + shift > 0):
+        raise FitError(
+            f"the smallest value, {lo!r}, is too far below 0 to shift above 0 for the "
+            "logarithm; choose Yeo-Johnson, which accepts any sign"
+        )
+    return shift
+
+
 class Logarithm(Method):
     id = "log"
     name = "logarithm"
@@ -490,8 +522,7 @@ class Logarithm(Method):
         warnings = []
         shift = 0.0
         if lo <= 0:
-            # Common practice: shift so the smallest fitted value becomes 1 (its log is 0).
-            shift = 1.0 - lo
+            shift = log_shift(lo)
             warnings.append(
                 f"there are values of 0 or below; {shift!r} is added before the logarithm"
             )

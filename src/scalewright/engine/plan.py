@@ -131,15 +131,48 @@ def value_key(value: Any) -> str:
     return str(value).strip()
 
 
-def group_codes(series: pd.Series) -> tuple[np.ndarray, list[str]]:
+#: The most different values a grouping column may have. One parameter set per group is
+#: fitted, shown and saved; beyond this the column is almost surely not a grouping (an id,
+#: a measurement) and the project would be mostly parameters.
+MAX_GROUPS = 1_000
+
+
+def group_codes(
+    series: pd.Series, *, limit: int | None = MAX_GROUPS
+) -> tuple[np.ndarray, list[str]]:
     """Factorize ``series`` into integer codes and the canonical key of each code.
 
     Cells whose keys are the same (3 and 3.0 in a mixed column, 'A' and ' A') share one
     code, so that they form one group; missing cells have code -1. This is the
-    ``group_keys`` argument of ``fit_column``.
+    ``group_keys`` argument of ``fit_column``. ColumnError when there are more than
+    ``limit`` groups (``None``: no limit, for applying to a file with unseen groups).
     """
     codes, uniques = pd.factorize(series, use_na_sentinel=True)
-    return merge_group_keys(codes, [value_key(u) for u in uniques])
+    codes, keys = merge_group_keys(codes, [value_key(u) for u in uniques])
+    if limit is not None and len(keys) > limit:
+        raise ColumnError(
+            str(series.name),
+            f"has {len(keys):,} different values; grouping works with at most {limit:,}",
+        )
+    return codes, keys
+
+
+def rows_by_code(codes: np.ndarray, use: np.ndarray | None = None) -> dict[int, np.ndarray]:
+    """The row numbers of each code (>= 0) among the rows in ``use``, in one pass.
+
+    A stable sort of the codes keeps every group's rows in their original order, so a
+    group's values are the same array, in the same order, as ``x[codes == code]``.
+    """
+    codes = np.asarray(codes)
+    rows = np.arange(codes.size) if use is None else np.flatnonzero(use)
+    picked = codes[rows]
+    if picked.size == 0:
+        return {}
+    order = np.argsort(picked, kind="stable")
+    rows, picked = rows[order], picked[order]
+    starts = np.flatnonzero(np.diff(picked, prepend=-2))  # where a new code begins
+    ends = np.append(starts[1:], picked.size)
+    return {int(picked[a]): rows[a:b] for a, b in zip(starts, ends, strict=True) if picked[a] >= 0}
 
 
 def merge_group_keys(codes: np.ndarray, raw_keys: Sequence[str]) -> tuple[np.ndarray, list[str]]:
@@ -161,8 +194,20 @@ def merge_group_keys(codes: np.ndarray, raw_keys: Sequence[str]) -> tuple[np.nda
     return remap[np.asarray(codes)], keys
 
 
+_TRUE_WORDS = {"true", "yes", "1"}
+_FALSE_WORDS = {"false", "no", "0"}
+
+
 def _wanted_key(series: pd.Series, wanted: Any) -> str:
-    """The key of a value typed by the user, read as a number when the column is numeric."""
+    """The key of a value typed by the user, read as a number when the column is numeric
+    and as yes or no (true/false/yes/no/1/0, any case) when the column is yes/no."""
+    if pd.api.types.is_bool_dtype(series.dtype):
+        text = value_key(wanted).lower()
+        if text in _TRUE_WORDS:
+            return "true"
+        if text in _FALSE_WORDS:
+            return "false"
+        return value_key(wanted)
     if (
         isinstance(wanted, str)
         and pd.api.types.is_numeric_dtype(series.dtype)
@@ -277,13 +322,9 @@ def fit_column(
     groups: dict[str, ParamSet] = {}
     if group_keys is not None and choice.method != "none":
         codes, keys = merge_group_keys(*group_keys)
-        for code, key in enumerate(keys):
-            in_group = use & (codes == code)
-            if not in_group.any():
-                continue
-            groups[key], group_warnings = _fit_values(
-                method, column, x[in_group], choice.options, key
-            )
+        for code, rows in rows_by_code(codes, use).items():  # in order of the codes
+            key = keys[code]
+            groups[key], group_warnings = _fit_values(method, column, x[rows], choice.options, key)
             warnings.extend(group_warnings)
     if n_infinite:
         warnings.append(
@@ -338,7 +379,8 @@ def fit(
 def _param_sets_by_row(
     fc: FittedColumn, data: pd.DataFrame, group_by: str | None, report: ColumnReport
 ) -> list[tuple[ParamSet, np.ndarray | None]]:
-    """Which parameter set serves which rows: [(params, row mask or None for all rows)]."""
+    """Which parameter set serves which rows: [(params, row numbers or mask, or None for
+    all rows)]."""
     if group_by is None or not fc.groups:
         return [(fc.pooled, None)]
     if group_by not in data.columns:
@@ -346,16 +388,22 @@ def _param_sets_by_row(
             f"there is no '{group_by}' column here, so the parameters fitted on all groups were used"
         )
         return [(fc.pooled, None)]
-    codes, keys = group_codes(data[group_by])
-    out = []
-    pooled_rows = codes < 0
+    # A new file may have any number of groups (those not fitted use the pooled ones).
+    codes, keys = group_codes(data[group_by], limit=None)
+    # Code of the parameter set per key: its group's position, or -1 for the pooled set.
+    names = list(fc.groups)
+    position = {key: i for i, key in enumerate(names)}
+    set_of = np.full(len(keys) + 1, -1, dtype=np.intp)  # the last slot: code -1, no group
     for code, key in enumerate(keys):
-        rows = codes == code
-        if key in fc.groups:
-            out.append((fc.groups[key], rows))
+        if key in position:
+            set_of[code] = position[key]
         else:
             report.unseen_groups.append(key)
-            pooled_rows |= rows
+    row_sets = set_of[codes]
+    out: list[tuple[ParamSet, np.ndarray | None]] = [
+        (fc.groups[names[i]], rows) for i, rows in rows_by_code(row_sets).items()
+    ]
+    pooled_rows = row_sets < 0
     if report.unseen_groups:
         report.warnings.append(
             "groups not seen when fitting used the parameters fitted on all groups: "
