@@ -58,19 +58,19 @@ examples:
   scalewright show harvest_2025_scaled.xlsx"""
 
 
-class _Formatter(argparse.RawDescriptionHelpFormatter):
-    pass
+def _add_output(p: argparse.ArgumentParser, metavar: str, help: str, required: bool) -> None:
+    p.add_argument("-o", "--output", metavar=metavar, required=required, help=help)
 
 
-class UsageError(Exception):
-    """A command line that cannot be understood (exit status 2)."""
+def _add_sheet(p: argparse.ArgumentParser) -> None:
+    p.add_argument("--sheet", metavar="NAME", help="the worksheet to read (workbooks)")
 
 
 def build_parser() -> argparse.ArgumentParser:
     parser = argparse.ArgumentParser(
         prog=PROG,
         description=DESCRIPTION,
-        formatter_class=_Formatter,
+        formatter_class=argparse.RawDescriptionHelpFormatter,
         epilog="Run 'scalewright COMMAND --help' for the options and examples of a command.",
     )
     parser.add_argument("--version", action="version", version=f"%(prog)s {__version__}")
@@ -82,7 +82,7 @@ def build_parser() -> argparse.ArgumentParser:
         description="Open the window on a data file (.csv, .tsv, .xlsx, ...) or a project "
         "(.swproj).",
         epilog="example:\n  scalewright open harvest_2025.csv",
-        formatter_class=_Formatter,
+        formatter_class=argparse.RawDescriptionHelpFormatter,
     )
     p.add_argument("file", metavar="FILE", help="data file or project file")
 
@@ -92,7 +92,7 @@ def build_parser() -> argparse.ArgumentParser:
         description="Fit a scaling method to columns of DATA and save the fitted parameters "
         "in a project file (and, with -o, the scaled data).",
         epilog=FIT_EXAMPLES,
-        formatter_class=_Formatter,
+        formatter_class=argparse.RawDescriptionHelpFormatter,
     )
     p.add_argument("data", metavar="DATA", help="the data file to fit on")
     p.add_argument(
@@ -111,7 +111,7 @@ def build_parser() -> argparse.ArgumentParser:
         required=True,
         help="the project file to write (.swproj)",
     )
-    p.add_argument("--sheet", metavar="NAME", help="the worksheet to read (workbooks)")
+    _add_sheet(p)
     p.add_argument(
         "--group-by", metavar="COLUMN", help="fit one set of parameters per value of COLUMN"
     )
@@ -121,9 +121,7 @@ def build_parser() -> argparse.ArgumentParser:
         help="fit only on the rows where COLUMN is VALUE (for example split=train); "
         "every row is still scaled",
     )
-    p.add_argument(
-        "-o", "--output", metavar="SCALED", help="also write the scaled data (.xlsx, .csv or .tsv)"
-    )
+    _add_output(p, "SCALED", "also write the scaled data (.xlsx, .csv or .tsv)", False)
 
     p = commands.add_parser(
         "apply",
@@ -132,18 +130,12 @@ def build_parser() -> argparse.ArgumentParser:
         "scaled workbook); nothing is refitted. Prints, per column, how many values lie "
         "outside the range the parameters were fitted on.",
         epilog=APPLY_EXAMPLES,
-        formatter_class=_Formatter,
+        formatter_class=argparse.RawDescriptionHelpFormatter,
     )
     p.add_argument("project", metavar="PROJECT", help="project file or scaled workbook")
     p.add_argument("data", metavar="DATA", help="the data file to scale")
-    p.add_argument(
-        "-o",
-        "--output",
-        metavar="OUTPUT",
-        required=True,
-        help="the scaled file to write (.xlsx, .csv or .tsv)",
-    )
-    p.add_argument("--sheet", metavar="NAME", help="the worksheet to read (workbooks)")
+    _add_output(p, "OUTPUT", "the scaled file to write (.xlsx, .csv or .tsv)", True)
+    _add_sheet(p)
     p.add_argument(
         "--clip",
         action="store_true",
@@ -157,18 +149,12 @@ def build_parser() -> argparse.ArgumentParser:
         "parameters of PROJECT_OR_WORKBOOK. Columns with the name of a fitted column are "
         "restored; --as restores a differently named column; other columns pass through.",
         epilog=RESTORE_EXAMPLES,
-        formatter_class=_Formatter,
+        formatter_class=argparse.RawDescriptionHelpFormatter,
     )
     p.add_argument("project", metavar="PROJECT_OR_WORKBOOK", help="project file or scaled workbook")
     p.add_argument("data", metavar="DATA", help="the file with scaled values")
-    p.add_argument(
-        "-o",
-        "--output",
-        metavar="OUTPUT",
-        required=True,
-        help="the restored file to write (.xlsx, .csv or .tsv)",
-    )
-    p.add_argument("--sheet", metavar="NAME", help="the worksheet to read (workbooks)")
+    _add_output(p, "OUTPUT", "the restored file to write (.xlsx, .csv or .tsv)", True)
+    _add_sheet(p)
     p.add_argument(
         "--as",
         dest="mapping",
@@ -184,7 +170,7 @@ def build_parser() -> argparse.ArgumentParser:
         description="Print the project: its data file, the rows fitted on, and per column "
         "the method, options, key parameters and warnings.",
         epilog=SHOW_EXAMPLES,
-        formatter_class=_Formatter,
+        formatter_class=argparse.RawDescriptionHelpFormatter,
     )
     p.add_argument("project", metavar="PROJECT", help="project file or scaled workbook")
     return parser
@@ -284,8 +270,8 @@ def parse_method_spec(text: str) -> tuple[str, str, dict[str, str]]:
     return column, method_id.strip().lower(), options
 
 
-def parse_method_specs(specs: Sequence[str]) -> list[tuple[str, Any, str]]:
-    """Check every ``-m`` before any file is read: [(column, normalized choice, spec)]."""
+def parse_method_specs(specs: Sequence[str]) -> list[tuple[str, Any]]:
+    """Check every ``-m`` before any file is read: [(column, normalized choice)]."""
     from .engine import ColumnChoice, get_method
 
     out = []
@@ -296,18 +282,18 @@ def parse_method_specs(specs: Sequence[str]) -> list[tuple[str, Any, str]]:
             options = method.options(raw)
         except OptionError as err:
             raise OptionError(f"-m '{spec}': {err}") from None
-        out.append((column, ColumnChoice(method.id, options), spec))
+        out.append((column, ColumnChoice(method.id, options)))
     return out
 
 
-def build_choices(table, specs: Sequence[tuple[str, Any, str]], group_by: str | None = None):
+def build_choices(table, specs: Sequence[tuple[str, Any]], group_by: str | None = None):
     """Choices from parsed ``-m`` arguments: '*' covers every numeric column (except the
     grouping column); a named column overrides '*', and a later -m an earlier one."""
     from .io import ColumnKind
 
     star: Any = None
     named: dict[str, Any] = {}
-    for column, choice, _spec in specs:
+    for column, choice in specs:
         if column == "*":
             star = choice
             continue
@@ -353,39 +339,6 @@ def parse_mapping(pairs: Sequence[str], fitted: Sequence[str]) -> dict[str, str]
     return out
 
 
-def _check_output(output: str, data: str, project: str | None = None) -> Path:
-    """The output path, refused early if it is a project name, an unknown format, the
-    data file being read or the project (or workbook) the parameters come from."""
-    from .io import SUPPORTED_WRITE, ensure_not_source
-    from .project import SUFFIX
-
-    target = Path(output)
-    suffix = target.suffix.lower()
-    if suffix == SUFFIX:
-        raise WriteError(
-            target,
-            "this name is for project files; the output is a data file "
-            f"({', '.join(SUPPORTED_WRITE)})",
-        )
-    if suffix not in SUPPORTED_WRITE:
-        raise WriteError(
-            target,
-            f"cannot write '{suffix or 'no extension'}' files; use one of "
-            + ", ".join(SUPPORTED_WRITE),
-        )
-    ensure_not_source(target, data)
-    if project is not None:
-        try:
-            ensure_not_source(target, project)
-        except WriteError:
-            raise WriteError(
-                target,
-                "this is the file the parameters come from; choose another name so it "
-                "stays as it is",
-            ) from None
-    return target
-
-
 # --------------------------------------------------------------------------- commands
 
 
@@ -406,9 +359,9 @@ def _open_window(path: str | None) -> int:
 
 def cmd_fit(args: argparse.Namespace) -> int:
     from .engine import FitSettings
-    from .io import ReadOptions, ensure_not_source, read_table
+    from .io import ReadOptions, atomic_path, ensure_not_source, read_table
     from .project import SUFFIX, project_to_json, save_project
-    from .tasks import export_scaled, fit_project
+    from .tasks import check_target, export_scaled, fit_project
 
     project_path = Path(args.project)
     if project_path.suffix.lower() != SUFFIX:
@@ -416,7 +369,7 @@ def cmd_fit(args: argparse.Namespace) -> int:
     ensure_not_source(project_path, args.data)
     if not project_path.absolute().parent.is_dir():
         raise WriteError(project_path, "the folder does not exist")
-    output = _check_output(args.output, args.data, args.project) if args.output else None
+    output = check_target(args.output, source=args.data) if args.output else None
     specs = parse_method_specs(args.method)
     fit_where = None
     if args.fit_where is not None:
@@ -439,19 +392,16 @@ def cmd_fit(args: argparse.Namespace) -> int:
         )
     project = fit_project(table, choices, FitSettings(fit_where, args.group_by))
     project_to_json(project, project_path)  # any field that cannot be saved fails here
-    created_output = False
-    if output is not None:
-        existed = output.exists()
-        with _progress("writing") as progress:
-            reports = export_scaled(table, project, output, progress=progress)
-        created_output = not existed
-    try:
+    reports = []
+    if output is None:
         save_project(project, project_path)
-    except BaseException:
-        if created_output:
-            with contextlib.suppress(OSError):
-                output.unlink()  # type: ignore[union-attr]
-        raise
+    else:
+        # The scaled data goes to a temporary file that replaces the output only once the
+        # project is saved, so a failure at either step leaves both earlier files as they were.
+        with atomic_path(output, keep_suffix=True) as staged:
+            with _progress("writing") as progress:
+                reports = export_scaled(table, project, staged, progress=progress)
+            save_project(project, project_path)
     plan = project.plan
     assert plan is not None
     where = ""
@@ -477,10 +427,11 @@ def _report_notes(reports) -> list[str]:
 
 
 def cmd_apply(args: argparse.Namespace) -> int:
-    from .tasks import apply_to_file, describe_reports, load_project_or_workbook
+    from .tasks import apply_to_file, check_target, describe_reports, load_project_or_workbook
 
-    output = _check_output(args.output, args.data, args.project)
+    output = check_target(args.output, source=args.data)
     project = load_project_or_workbook(args.project)
+    check_target(output, source=args.data, project=project)
     with _progress("scaling") as progress:
         reports = apply_to_file(
             project, args.data, output, clip=args.clip, sheet=args.sheet, progress=progress
@@ -492,17 +443,27 @@ def cmd_apply(args: argparse.Namespace) -> int:
 
 
 def cmd_restore(args: argparse.Namespace) -> int:
-    from .tasks import describe_reports, load_project_or_workbook, restore_file
+    from .tasks import (
+        NothingToRestore,
+        check_target,
+        describe_reports,
+        load_project_or_workbook,
+        restore_file,
+    )
 
-    output = _check_output(args.output, args.data, args.project)
+    output = check_target(args.output, source=args.data)
     project = load_project_or_workbook(args.project)
+    check_target(output, source=args.data, project=project)
     if project.plan is None:
         raise ScalewrightError(f"{args.project}: the project has no fitted parameters")
     mapping = parse_mapping(args.mapping, list(project.plan.columns))
-    with _progress("restoring") as progress:
-        reports = restore_file(
-            project, args.data, output, mapping=mapping, sheet=args.sheet, progress=progress
-        )
+    try:
+        with _progress("restoring") as progress:
+            reports = restore_file(
+                project, args.data, output, mapping=mapping, sheet=args.sheet, progress=progress
+            )
+    except NothingToRestore as err:
+        raise ScalewrightError(f"{err}; name the pairs with --as COLUMN=SOURCE_COLUMN") from None
     for line in describe_reports(reports, restoring=True):
         print(line)
     print(f"restored data written to {output}")

@@ -30,11 +30,14 @@ import pandas as pd
 from . import __version__
 from .engine import (
     ColumnChoice,
+    FitError,
     FitSettings,
     FittedColumn,
     FittedPlan,
     ParamSet,
     get_method,
+    log_shift,
+    robust_scale,
 )
 from .errors import ProjectError, ReadError, ScalewrightError, WriteError
 from .io import ReadOptions, atomic_path, ensure_not_source, fingerprint
@@ -67,6 +70,9 @@ class Project:
     created: str = field(default_factory=now_iso)
     modified: str = field(default_factory=now_iso)
     app_version: str = __version__
+    # The file this project was loaded from (a .swproj or a scaled workbook), so that no
+    # output is written over it. Not saved, and not part of what makes two projects equal.
+    loaded_from: Path | None = field(default=None, compare=False)
 
 
 # =========================================================================== writing
@@ -502,9 +508,12 @@ def _check_params(
         q1, median, q3 = p["q1"], p["median"], p["q3"]
         if not lo <= q1 <= median <= q3 <= hi:
             bad("median", "the quartiles must satisfy min <= q1 <= median <= q3 <= max")
-        expected = q3 - q1 if q3 > q1 else 1.0
+        expected = robust_scale(q1, median, q3, lo, hi)
         if p["scale"] != expected:
-            bad("scale", f"must be q3 - q1 ({expected!r})")
+            if expected == q3 - q1:
+                bad("scale", f"must be q3 - q1 ({expected!r})")
+            why = "q1 equals q3" if not q3 > q1 else "the IQR is too narrow to divide by"
+            bad("scale", f"must be 1 ({why})")
     elif method == "maxabs":
         biggest = max(abs(lo), abs(hi))
         expected = biggest if biggest > 0 else 1.0
@@ -514,8 +523,17 @@ def _check_params(
         if p["base"] != options["base"]:
             bad("base", f"does not match the option base ({options['base']})")
         shift = p["shift"]
-        if shift != 0.0 and shift != 1.0 - lo:
-            bad("shift", f"must be 0 or 1 - min ({1.0 - lo!r})")
+        try:
+            fit_shift: float | None = log_shift(lo)
+        except FitError:
+            fit_shift = None
+        if shift != 0.0 and shift != fit_shift:
+            if fit_shift is None:
+                bad("shift", "must be 0 (no shift can lift the smallest fitted value above 0)")
+            elif fit_shift == 1.0 - lo:
+                bad("shift", f"must be 0 or 1 - min ({fit_shift!r})")
+            else:
+                bad("shift", f"must be 0 or 1 - min made just large enough ({fit_shift!r})")
         if not lo + shift > 0:
             bad("shift", "must make every fitted value above 0")
     elif method in ("boxcox", "yeojohnson"):
@@ -729,6 +747,7 @@ def load_project(path: str | os.PathLike) -> Project:
         beside = Path(os.path.normpath(path.parent.absolute() / relative))
         if beside.is_file():
             project.source = beside
+    project.loaded_from = path
     return project
 
 

@@ -8,6 +8,7 @@ them on to the io layer.
 
 from __future__ import annotations
 
+import dataclasses
 import os
 import re
 from collections.abc import Callable, Mapping, Sequence
@@ -33,12 +34,12 @@ from .io import (
     ReadOptions,
     Table,
     ensure_not_source,
-    fingerprint,
     read_embedded_project,
     read_table,
     write_scaled_workbook,
     write_table,
 )
+from .io import fingerprint as file_fingerprint
 from .project import (
     SUFFIX,
     Project,
@@ -89,12 +90,18 @@ def fit_project(
     settings: FitSettings | None = None,
     *,
     plan: FittedPlan | None = None,
+    fingerprint: tuple[int, str] | None = None,
 ) -> Project:
     """Fit ``choices`` on ``table`` and return the project that records it all.
 
     ``plan``, when given, holds parameters already fitted for exactly these choices (the
     window keeps them, including saved parameters the user chose to keep after the data
     file changed); they are recorded as they are instead of being fitted again.
+
+    The project records the size and SHA-256 of the data file as the table was read
+    (``Table.size``/``sha256``), not as the file is now; ``fingerprint`` (size, SHA-256)
+    overrides that, for parameters kept from a saved project, which belong to the file
+    that project recorded.
     """
     settings = settings or FitSettings()
     check_choices(table, choices)
@@ -104,9 +111,11 @@ def fit_project(
     else:
         _check_plan_matches(plan, normalized, settings)
     source = size = sha = None
-    if table.source is not None and Path(table.source).is_file():
+    if fingerprint is None and table.size is not None and table.sha256 is not None:
+        fingerprint = (table.size, table.sha256)
+    if table.source is not None and (fingerprint is not None or Path(table.source).is_file()):
         source = Path(os.path.abspath(table.source))
-        size, sha = fingerprint(source)
+        size, sha = fingerprint if fingerprint is not None else file_fingerprint(source)
     stamp = now_iso()
     return Project(
         source=source,
@@ -152,6 +161,54 @@ def scaled_data(
 # --------------------------------------------------------------------------- writing
 
 
+def check_target(
+    target: str | os.PathLike,
+    *,
+    source: str | os.PathLike | None = None,
+    project: Project | None = None,
+) -> Path:
+    """The path an output may be written to, or :class:`WriteError` saying why not.
+
+    Refused: a project file name, a format that cannot be written, a folder, ``source``
+    (the file the data is read from), and, for ``project``, the file it was loaded from
+    (a project file or a scaled workbook) and the data file it was fitted on. Nothing is
+    written; every job that writes an output checks here first, and so may a dialog.
+    """
+    target = Path(target)
+    suffix = target.suffix.lower()
+    if suffix == SUFFIX:
+        raise WriteError(
+            target,
+            "this name is for project files; choose a data file name ("
+            + ", ".join(SUPPORTED_WRITE)
+            + ")",
+        )
+    if suffix not in SUPPORTED_WRITE:
+        raise WriteError(
+            target,
+            f"cannot write '{suffix or 'no extension'}' files; use one of "
+            + ", ".join(SUPPORTED_WRITE),
+        )
+    ensure_not_source(target, source)
+    if project is not None:
+        _ensure_not(
+            target,
+            project.loaded_from,
+            "this is the file the parameters come from; choose another name so it stays as it is",
+        )
+        ensure_not_source(target, project.source)
+    if target.is_dir():
+        raise WriteError(target, "this is a folder; give a file name")
+    return target
+
+
+def _ensure_not(target: Path, other: Path | None, message: str) -> None:
+    try:
+        ensure_not_source(target, other)
+    except WriteError:
+        raise WriteError(target, message) from None
+
+
 def write_output(
     target: str | os.PathLike,
     data: Table | pd.DataFrame,
@@ -165,31 +222,18 @@ def write_output(
     """Write ``data`` to ``target`` in the format its extension names.
 
     ``.xlsx`` with a fitted ``project`` is a scaled workbook (data, parameters sheet and the
-    project embedded); otherwise the plain table. Neither ``source`` (the file the data was
-    read from) nor the project's own data file is ever overwritten.
+    project embedded); otherwise the plain table. ``target`` is checked by
+    :func:`check_target` first: neither ``source`` (the file the data was read from) nor
+    the project's own files are ever overwritten.
     """
-    target = Path(target)
     if isinstance(data, Table):
         source = data.source if source is None else source
         headers = data.headers if headers is None else headers
         data = data.data
+    target = check_target(target, source=source, project=project)
     if headers is None:
         headers = [str(c) for c in data.columns]
-    suffix = target.suffix.lower()
-    if suffix == SUFFIX:
-        raise WriteError(target, "this name is for project files; choose a data file name")
-    if suffix not in SUPPORTED_WRITE:
-        raise WriteError(
-            target,
-            f"cannot write '{suffix or 'no extension'}' files; use one of "
-            + ", ".join(SUPPORTED_WRITE),
-        )
-    ensure_not_source(target, source)
-    if project is not None:
-        ensure_not_source(target, project.source)
-    if target.is_dir():
-        raise WriteError(target, "this is a folder; give a file name")
-    if suffix == ".xlsx" and project is not None and project.plan is not None:
+    if target.suffix.lower() == ".xlsx" and project is not None and project.plan is not None:
         write_scaled_workbook(
             target,
             data,
@@ -228,11 +272,15 @@ def export_scaled(
 
 def _read(
     path: str | os.PathLike,
+    options: ReadOptions | None,
     sheet: str | None,
     progress: Progress | None,
     cancelled: CancelCheck | None,
 ) -> Table:
-    return read_table(path, ReadOptions(sheet=sheet), progress=progress, cancelled=cancelled)
+    options = options or ReadOptions()
+    if sheet is not None:
+        options = dataclasses.replace(options, sheet=sheet)
+    return read_table(path, options, progress=progress, cancelled=cancelled)
 
 
 def apply_to_file(
@@ -242,17 +290,40 @@ def apply_to_file(
     *,
     clip: bool = False,
     sheet: str | None = None,
+    options: ReadOptions | None = None,
     progress: Progress | None = None,
     cancelled: CancelCheck | None = None,
 ) -> list[ColumnReport]:
-    """Scale a new file with the saved parameters (nothing is refitted).
+    """Read ``data_path`` and scale it with the saved parameters (see :func:`apply_table`).
 
-    The new file's layout is detected afresh (``sheet`` picks a worksheet). The reports
-    count, per column, the values outside the range the parameters were fitted on; with
-    ``clip`` those are moved to the nearest end of that range first.
+    ``options`` says how to read the file (by default its layout is detected afresh);
+    ``sheet``, when given, picks the worksheet over ``options.sheet``.
+    """
+    _fitted(project)
+    check_target(target, source=data_path, project=project)
+    table = _read(data_path, options, sheet, _part(progress, 0.0, 0.5), cancelled)
+    return apply_table(
+        project, table, target, clip=clip, progress=_part(progress, 0.5, 1.0), cancelled=cancelled
+    )
+
+
+def apply_table(
+    project: Project,
+    table: Table,
+    target: str | os.PathLike,
+    *,
+    clip: bool = False,
+    progress: Progress | None = None,
+    cancelled: CancelCheck | None = None,
+) -> list[ColumnReport]:
+    """Scale a table read from a new file with the saved parameters (nothing is refitted)
+    and write it to ``target``.
+
+    The reports count, per column, the values outside the range the parameters were
+    fitted on; with ``clip`` those are moved to the nearest end of that range first.
     """
     plan = _fitted(project)
-    table = _read(data_path, sheet, _part(progress, 0.0, 0.5), cancelled)
+    check_target(target, source=table.source, project=project)
     _check_fitted_columns_numeric(table, plan.columns)
     data, reports = apply(blank_as_numbers(table, plan.columns), plan, clip=clip)
     write_output(
@@ -261,7 +332,7 @@ def apply_to_file(
         table.headers,
         project,
         source=table.source,
-        progress=_part(progress, 0.5, 1.0),
+        progress=progress,
         cancelled=cancelled,
     )
     return reports
@@ -271,8 +342,13 @@ def not_numbers(table: Table, label: str) -> str:
     """Why a column of ``table`` cannot be scaled or restored ("" when it can)."""
     kind = table.kinds.get(label)
     if kind is not None and kind not in (ColumnKind.NUMBER, ColumnKind.EMPTY):
-        return f"holds {kind} values in {table.source.name}, not numbers"
+        return (
+            f"holds {_KIND_WORDS.get(kind, str(kind))} values in {table.source.name}, not numbers"
+        )
     return ""
+
+
+_KIND_WORDS = {ColumnKind.BOOLEAN: "yes/no"}
 
 
 def _check_fitted_columns_numeric(table: Table, columns: Sequence[str]) -> None:
@@ -298,6 +374,11 @@ def blank_as_numbers(table: Table, columns: Sequence[str]) -> pd.DataFrame:
     return data
 
 
+class NothingToRestore(ScalewrightError):
+    """No column of the file is paired with a fitted column (the command line adds how to
+    name the pairs; the window shows its mapping table)."""
+
+
 def restore_file(
     project: Project,
     data_path: str | os.PathLike,
@@ -306,10 +387,37 @@ def restore_file(
     mapping: Mapping[str, str] | None = None,
     exact: bool = False,
     sheet: str | None = None,
+    options: ReadOptions | None = None,
     progress: Progress | None = None,
     cancelled: CancelCheck | None = None,
 ) -> list[ColumnReport]:
-    """Turn scaled values in ``data_path`` back into original units and write ``target``.
+    """Read ``data_path`` and turn its scaled values back into original units (see
+    :func:`restore_table`). ``options`` and ``sheet`` as for :func:`apply_to_file`."""
+    _fitted(project)
+    check_target(target, source=data_path, project=project)
+    table = _read(data_path, options, sheet, _part(progress, 0.0, 0.5), cancelled)
+    return restore_table(
+        project,
+        table,
+        target,
+        mapping=mapping,
+        exact=exact,
+        progress=_part(progress, 0.5, 1.0),
+        cancelled=cancelled,
+    )
+
+
+def restore_table(
+    project: Project,
+    table: Table,
+    target: str | os.PathLike,
+    *,
+    mapping: Mapping[str, str] | None = None,
+    exact: bool = False,
+    progress: Progress | None = None,
+    cancelled: CancelCheck | None = None,
+) -> list[ColumnReport]:
+    """Turn scaled values in ``table`` back into original units and write ``target``.
 
     Columns are matched to fitted columns by :func:`auto_mapping`; ``mapping`` adds or
     overrides pairs (file column -> fitted column, e.g. ``{"predicted_yield": "yield_kg"}``).
@@ -318,7 +426,7 @@ def restore_file(
     through untouched. The output is a plain table.
     """
     plan = _fitted(project)
-    table = _read(data_path, sheet, _part(progress, 0.0, 0.5), cancelled)
+    check_target(target, source=table.source, project=project)
     pairs = {} if exact else auto_mapping(list(table.data.columns), project)
     for column, fitted in (mapping or {}).items():
         if column not in table.data.columns:
@@ -330,14 +438,11 @@ def restore_file(
             )
         pairs[column] = fitted
     if not pairs:
-        raise ScalewrightError(
+        raise NothingToRestore(
             f"{table.source.name}: no column matches a fitted column of the project "
-            f"(fitted: {', '.join(plan.columns) or 'none'}); name the pairs with --as "
-            "COLUMN=FITTED_COLUMN"
+            f"(fitted: {', '.join(plan.columns) or 'none'})"
         )
     _check_fitted_columns_numeric(table, list(pairs))
-    if project.source is not None:
-        ensure_not_source(target, project.source)
     data, reports = restore(blank_as_numbers(table, pairs), plan, pairs)
     write_output(
         target,
@@ -345,7 +450,7 @@ def restore_file(
         table.headers,
         None,
         source=table.source,
-        progress=_part(progress, 0.5, 1.0),
+        progress=progress,
         cancelled=cancelled,
     )
     return reports
@@ -356,7 +461,7 @@ def load_project_or_workbook(path: str | os.PathLike) -> Project:
     path = Path(path)
     suffix = path.suffix.lower()
     if suffix == SUFFIX:
-        return load_project(path)
+        return load_project(path)  # which records loaded_from itself
     if suffix in (".xlsx", ".xlsm"):
         if not path.is_file():
             raise ReadError(path, "there is no such file")
@@ -366,7 +471,9 @@ def load_project_or_workbook(path: str | os.PathLike) -> Project:
                 path,
                 "holds no Scalewright project (only scaled workbooks written by Scalewright do)",
             )
-        return project_from_json(text, f"{path} (embedded project)")
+        project = project_from_json(text, f"{path} (embedded project)")
+        project.loaded_from = path
+        return project
     raise ProjectError(path, f"is not a project file ({SUFFIX}) or a scaled workbook (.xlsx)")
 
 

@@ -313,7 +313,8 @@ def test_object_columns_are_written_cell_by_cell(tmp_path):
     frame = pd.DataFrame({"mixed": pd.Series([1.5, "text", None, True], dtype=object)})
     write_table(tmp_path / "o.csv", frame, ["mixed"])
     lines = (tmp_path / "o.csv").read_text(encoding="utf-8").splitlines()
-    assert lines == ["mixed", "1.5", "text", '""', "True"]
+    # Cell by cell as text, and quoted as every text cell is (as with several columns).
+    assert lines == ["mixed", '"1.5"', '"text"', '""', '"True"']
     write_table(tmp_path / "o.xlsx", frame, ["mixed"])
     sheet = openpyxl.load_workbook(tmp_path / "o.xlsx")["data"]
     assert [sheet.cell(r, 1).value for r in range(2, 6)] == [1.5, "text", None, True]

@@ -19,7 +19,10 @@ analyst may ask about, in one place:
 - Workbooks: the first visible sheet with data; title rows above the header skipped; a
   merged header cell names every column it spans; hidden sheets are not listed.
 - Writing: CSV/TSV are UTF-8 without BOM, CR LF line ends, ``.`` decimals, shortest
-  round-trip floats, ISO dates, empty for missing, every text cell quoted. XLSX holds
+  round-trip floats, ISO dates, empty for missing, every text cell quoted. A missing
+  value in a one-column file, and a row of only missing values at the end, is written as
+  quoted empty cells (``""``): reading keeps those rows, while rows of bare separators at
+  the end (spreadsheet export leftovers) are left out. XLSX holds
   numbers at full precision, dates as dates, text as text (never a formula).
 """
 

@@ -8,6 +8,7 @@ from __future__ import annotations
 
 import contextlib
 import os
+import stat
 import tempfile
 from collections.abc import Iterator
 from pathlib import Path
@@ -20,25 +21,29 @@ os.umask(_UMASK)
 
 
 @contextlib.contextmanager
-def atomic_path(target: str | os.PathLike) -> Iterator[Path]:
+def atomic_path(target: str | os.PathLike, *, keep_suffix: bool = False) -> Iterator[Path]:
     """Yield a temporary path beside ``target``; on success it replaces ``target``.
 
-    Any exception (including ``Cancelled``) deletes the temporary file and propagates;
-    operating-system errors become ``WriteError`` naming the target.
+    A file that is replaced keeps its permission bits; a new file gets the usual ones
+    (0666 less the umask). With ``keep_suffix`` the temporary name ends in the target's
+    extension, for writers that choose the format by it. Any exception (including
+    ``Cancelled``) deletes the temporary file and propagates; operating-system errors
+    become ``WriteError`` naming the target.
     """
     target = Path(target)
     folder = target.parent
     if not folder.is_dir():
         raise WriteError(target, "the folder does not exist")
     try:
-        fd, name = tempfile.mkstemp(prefix=f".{target.name}.", suffix=".part", dir=folder)
+        suffix = ".part" + (target.suffix if keep_suffix else "")
+        fd, name = tempfile.mkstemp(prefix=f".{target.name}.", suffix=suffix, dir=folder)
         os.close(fd)
     except OSError as err:
         raise WriteError(target, f"cannot write in this folder ({err.strerror})") from None
     tmp = Path(name)
     try:
         yield tmp
-        os.chmod(tmp, 0o666 & ~_UMASK)
+        os.chmod(tmp, _mode_for(target))
         os.replace(tmp, target)
     except OSError as err:
         _remove(tmp)
@@ -46,6 +51,14 @@ def atomic_path(target: str | os.PathLike) -> Iterator[Path]:
     except BaseException:
         _remove(tmp)
         raise
+
+
+def _mode_for(target: Path) -> int:
+    """The permission bits of the file being replaced, or the usual ones for a new file."""
+    try:
+        return stat.S_IMODE(os.stat(target).st_mode)
+    except OSError:
+        return 0o666 & ~_UMASK
 
 
 def _remove(path: Path) -> None:

@@ -198,7 +198,49 @@ def _read_text(path, options, raw, preview_rows, streamed, progress, cancelled) 
         from_workbook=False,
         progress=progress,
         cancelled=cancelled,
+        bare_tail=lambda limit: _bare_tail(rest, limit, width),
     )
+
+
+_TAIL_BLOCK = 1 << 16
+
+
+def _bare_tail(rest, limit: int, width: int) -> int:
+    """How many of the last rows (at most ``limit``, all of them without a value) are
+    lines of bare separators, counted from the end up to the first line holding a quote.
+
+    Spreadsheet exports leave rows of bare separators below the data; they are not rows.
+    Scalewright writes a row of missing values that ends a file as quoted empty cells
+    (``""``), which marks it as a row that belongs to the table.
+    """
+    streamed = isinstance(rest, _FileTail)
+    size = Path(rest.path).stat().st_size - rest.start if streamed else len(rest)
+    block = _TAIL_BLOCK
+    while True:
+        whole = block >= size
+        if streamed:
+            with open(rest.path, "rb") as fh:
+                fh.seek(rest.start + max(size - block, 0))
+                blob = fh.read()
+        else:
+            blob = bytes(rest[max(size - block, 0) :])
+        lines = blob.split(b"\n")
+        if not whole:
+            lines = lines[1:]  # the first may be the end of a longer line
+        count = 0
+        for line in reversed(lines):
+            if not line.strip():
+                if width > 1 or not line.strip(b"\r"):
+                    continue  # a blank line, which is no row at all
+                return count
+            if b'"' in line:
+                return count
+            count += 1
+            if count >= limit:
+                return count
+        if whole:
+            return count
+        block *= 16
 
 
 def _number_marks(body, delimiter: str, options: ReadOptions, notes: list[str]):
@@ -515,16 +557,19 @@ def build_table(
     progress: Progress | None = None,
     cancelled: CancelCheck | None = None,
     span: tuple[float, float] = (0.4, 1.0),
+    bare_tail=None,
 ) -> Table:
     """Drop empty edge rows/columns, classify every column and attach unique labels.
 
     ``frame`` is a DataFrame (workbooks) or the Arrow table of a text file, whose columns
     are strings, or float64 where the file was read as numbers directly (``_read_body``).
-    Progress moves through ``span`` column by column.
+    Progress moves through ``span`` column by column. ``bare_tail(n)`` (text files) says
+    how many of the last ``n`` rows with no value are export leftovers to leave out;
+    without it all of them are.
     """
     cells = _Cells(frame)
     # Trailing rows with no value at all (left behind by spreadsheet exports).
-    cells.drop_empty_tail()
+    cells.drop_empty_tail(bare_tail)
     # Columns with no header text and no values at the right edge are not part of the table.
     keep = list(range(cells.width))
     while keep and not headers[keep[-1]].strip() and not cells.has_values(keep[-1]):
@@ -588,7 +633,7 @@ class _Cells:
     def width(self) -> int:
         return self.frame.shape[1]
 
-    def drop_empty_tail(self) -> None:
+    def drop_empty_tail(self, bare_tail=None) -> None:
         frame = self.frame
         if not self.width or not self.rows:
             return
@@ -604,6 +649,8 @@ class _Cells:
             return
         last = np.flatnonzero(filled)
         end = int(last[-1]) + 1 if len(last) else 0
+        if bare_tail is not None:
+            end = self.rows - bare_tail(self.rows - end)
         self.frame = frame.iloc[:end] if isinstance(frame, pd.DataFrame) else frame.slice(0, end)
 
     def has_values(self, i: int) -> bool:

@@ -114,6 +114,10 @@ class Table:
     options: ReadOptions
     notes: list[str] = field(default_factory=list)
     sheets: list[str] = field(default_factory=list)
+    # The file as it was read: size in bytes and SHA-256, so a project records exactly the
+    # bytes its parameters were fitted on (None for a table not read from a file).
+    size: int | None = None
+    sha256: str | None = None
 
 
 @dataclass

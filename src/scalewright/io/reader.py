@@ -3,6 +3,7 @@
 from __future__ import annotations
 
 import hashlib
+import os
 from pathlib import Path
 
 from ..errors import ReadError
@@ -42,13 +43,22 @@ def read_table(
     progress: Progress | None = None,
     cancelled: CancelCheck | None = None,
 ) -> Table:
-    """Read a whole CSV/TSV/TXT or workbook file; every detected option is filled in."""
+    """Read a whole CSV/TSV/TXT or workbook file; every detected option is filled in.
+
+    The table records the file's size and SHA-256 as read; a file that changes while it
+    is read is refused rather than recorded with a fingerprint it does not match.
+    """
     path = _checked(path)
     options = options or ReadOptions()
+    before = _stamp(path)
+    size, sha256 = fingerprint(path)
     if path.suffix.lower() in TEXT_SUFFIXES:
         table = read_text_table(path, options, progress=progress, cancelled=cancelled)
     else:
         table = read_workbook_table(path, options, progress=progress, cancelled=cancelled)
+    if _stamp(path) != before or size != before[0]:
+        raise ReadError(path, "the file changed while it was being read; read it again")
+    table.size, table.sha256 = size, sha256
     if progress is not None:
         progress(1.0)
     return table
@@ -73,6 +83,14 @@ def list_sheets(path) -> list[str]:
     if path.suffix.lower() in TEXT_SUFFIXES:
         return []
     return list_workbook_sheets(path)
+
+
+def _stamp(path: Path) -> tuple[int, int]:
+    try:
+        st = os.stat(path)
+    except OSError as err:
+        raise ReadError(path, f"the file cannot be opened ({err.strerror})") from None
+    return st.st_size, st.st_mtime_ns
 
 
 def fingerprint(path) -> tuple[int, str]:

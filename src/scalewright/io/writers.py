@@ -380,30 +380,46 @@ def _write_delimited(path, data, headers, sep, progress, cancelled) -> None:
         if table.num_columns == 1:
             _write_one_column(fh, table, sep, progress, cancelled)
         else:
-            for start in range(0, n, CHUNK_ROWS):
+            filled = n - _missing_tail(data)
+            for start in range(0, filled, CHUNK_ROWS):
                 if cancelled is not None and cancelled():
                     raise Cancelled()
-                pacsv.write_csv(table.slice(start, CHUNK_ROWS), fh, options)
+                pacsv.write_csv(table.slice(start, min(CHUNK_ROWS, filled - start)), fh, options)
                 if progress is not None:
                     progress(min(1.0, (start + CHUNK_ROWS) / n))
+            # Rows of bare separators at the end read as export leftovers; quoted empty
+            # cells mark these as rows of missing values (see csv_reader._bare_tail).
+            row = sep.join(['""'] * table.num_columns) + "\r\n"
+            fh.write(row.encode("utf-8") * (n - filled))
         if cancelled is not None and cancelled():
             raise Cancelled()
     if progress is not None:
         progress(1.0)
 
 
+def _missing_tail(data: pd.DataFrame) -> int:
+    """How many rows at the end of ``data`` hold no value at all."""
+    if not len(data) or data.iloc[-1].notna().any():
+        return 0
+    filled = np.flatnonzero(data.notna().to_numpy().any(axis=1))
+    return len(data) - (int(filled[-1]) + 1 if len(filled) else 0)
+
+
 def _write_one_column(fh, table: pa.Table, sep: str, progress, cancelled) -> None:
-    """With one column a missing value would be an empty line, which readers skip; the
-    csv module writes it as ``""`` instead. Values are turned to text by the same Arrow
-    cast the CSV writer uses, so numbers look the same either way."""
+    """With one column a missing value would be an empty line, which readers skip; it is
+    written as ``""`` instead, which the reader keeps as a row even at the end. Text is
+    quoted as the CSV writer quotes it with more columns; values are turned to text by
+    the same Arrow cast the CSV writer uses, so numbers look the same either way."""
     column = table.column(0)
-    if not pa.types.is_string(column.type) and not pa.types.is_large_string(column.type):
+    text_column = pa.types.is_string(column.type) or pa.types.is_large_string(column.type)
+    if not text_column:
         column = pc.cast(column, pa.string())
+    quoting = csv.QUOTE_ALL if text_column else csv.QUOTE_MINIMAL
     for start in range(0, len(column), CHUNK_ROWS):
         if cancelled is not None and cancelled():
             raise Cancelled()
         text = io.StringIO()
-        writer = csv.writer(text, delimiter=sep, lineterminator="\r\n")
+        writer = csv.writer(text, delimiter=sep, lineterminator="\r\n", quoting=quoting)
         writer.writerows(
             [v if v is not None else ""] for v in column.slice(start, CHUNK_ROWS).to_pylist()
         )
