@@ -21,6 +21,7 @@ from PySide6.QtWidgets import QDialog, QFileDialog
 from scalewright import engine, tasks
 from scalewright import io as swio
 from scalewright.engine import ColumnChoice, FitSettings
+from scalewright.errors import ScalewrightError
 from scalewright.gui.apply_dialog import ApplyDialog
 
 pytestmark = [pytest.mark.gui, pytest.mark.usefixtures("themed")]
@@ -128,11 +129,18 @@ def test_preview_counts_equal_the_engine_report(qtbot, dialog, project, table_20
     save_screenshot(dialog, "apply_dialog", tmp_path)
 
 
-def test_clip_checkbox_changes_the_written_file(qtbot, dialog, project, table_2026, tmp_path):
+def test_clip_checkbox_changes_the_written_file(
+    qtbot, dialog, project, table_2026, tmp_path, monkeypatch
+):
     pick_data(qtbot, dialog, HARVEST_2026)
     plain, clipped = tmp_path / "plain.csv", tmp_path / "clipped.csv"
 
     pick_output(qtbot, dialog, plain)
+
+    def read_again(*args, **kwargs):
+        raise AssertionError("the file was read a second time")
+
+    monkeypatch.setattr(tasks, "read_table", read_again)  # the table read is the one scaled
     save_and_wait(qtbot, dialog)
     assert dialog.written_path() == plain
     assert "Saved plain.csv" in dialog.result_text()
@@ -161,6 +169,7 @@ def test_clip_checkbox_changes_the_written_file(qtbot, dialog, project, table_20
     assert a["irrigation_l_per_week"].max() > 1.05
 
     # The very same bytes as the task the command line runs.
+    monkeypatch.undo()
     reference = tmp_path / "reference.csv"
     tasks.apply_to_file(project, HARVEST_2026, reference, clip=True)
     assert filecmp.cmp(clipped, reference, shallow=False)
@@ -177,21 +186,23 @@ def test_the_source_file_can_never_be_the_output(qtbot, dialog, tmp_path):
 
     pick_output(qtbot, dialog, data)
     assert not dialog.can_save()
-    assert "This is the file being scaled" in dialog.output_problem()
+    assert "the file the data was read from" in dialog.output_problem()
     assert dialog.output_error.isVisibleTo(dialog)
     qtbot.mouseClick(dialog.save_button, Qt.MouseButton.LeftButton)  # disabled: nothing happens
     dialog.save()  # nor from code
     assert not dialog.is_busy()
     assert (data.stat().st_mtime_ns, data.read_bytes()) == before
 
-    # The file the project was fitted on is refused too.
+    # The file the project was fitted on is refused too, with the words the tasks use.
     pick_output(qtbot, dialog, HARVEST_2025)
-    assert "fitted on" in dialog.output_problem()
+    with pytest.raises(ScalewrightError) as refused:
+        tasks.check_target(HARVEST_2025, project=dialog._project)
+    assert dialog.output_problem() == str(refused.value)
     assert not dialog.can_save()
 
     # Other names: the format must be one we write, and the folder must exist.
     pick_output(qtbot, dialog, tmp_path / "scaled.json")
-    assert ".xlsx, .csv or .tsv" in dialog.output_problem()
+    assert "cannot write '.json' files" in dialog.output_problem()
     pick_output(qtbot, dialog, tmp_path / "no_such_folder" / "scaled.csv")
     assert "does not exist" in dialog.output_problem()
     pick_output(qtbot, dialog, tmp_path / "scaled.tsv")
@@ -200,7 +211,7 @@ def test_the_source_file_can_never_be_the_output(qtbot, dialog, tmp_path):
 
 
 def test_cancel_leaves_no_file(qtbot, dialog, project, tmp_path, monkeypatch):
-    real = tasks.apply_to_file
+    real = tasks.apply_table
     started = []
 
     def held_until_cancelled(*args, cancelled, **kw):
@@ -210,7 +221,7 @@ def test_cancel_leaves_no_file(qtbot, dialog, project, tmp_path, monkeypatch):
             time.sleep(0.01)
         return real(*args, cancelled=cancelled, **kw)  # the real task sees the cancel
 
-    monkeypatch.setattr(tasks, "apply_to_file", held_until_cancelled)
+    monkeypatch.setattr(tasks, "apply_table", held_until_cancelled)
     out_dir = tmp_path / "out"
     out_dir.mkdir()
     target = out_dir / "harvest_2026_scaled.xlsx"
@@ -232,7 +243,7 @@ def test_cancel_leaves_no_file(qtbot, dialog, project, tmp_path, monkeypatch):
 
 
 def test_a_failed_write_leaves_no_file_and_says_why(qtbot, dialog, tmp_path, monkeypatch):
-    real = tasks.apply_to_file
+    real = tasks.apply_table
 
     def disk_fills_up(*args, progress, **kw):
         def report(fraction):
@@ -242,7 +253,7 @@ def test_a_failed_write_leaves_no_file_and_says_why(qtbot, dialog, tmp_path, mon
 
         return real(*args, progress=report, **kw)
 
-    monkeypatch.setattr(tasks, "apply_to_file", disk_fills_up)
+    monkeypatch.setattr(tasks, "apply_table", disk_fills_up)
     out_dir = tmp_path / "out"
     out_dir.mkdir()
     pick_data(qtbot, dialog, HARVEST_2026)
@@ -360,7 +371,7 @@ def test_every_control_explains_itself(dialog):
 def test_closing_while_writing_stops_the_write_and_leaves_no_file(
     qtbot, dialog, tmp_path, monkeypatch
 ):
-    real = tasks.apply_to_file
+    real = tasks.apply_table
     started = []
 
     def held_until_cancelled(*args, cancelled, **kw):
@@ -370,7 +381,7 @@ def test_closing_while_writing_stops_the_write_and_leaves_no_file(
             time.sleep(0.01)
         return real(*args, cancelled=cancelled, **kw)
 
-    monkeypatch.setattr(tasks, "apply_to_file", held_until_cancelled)
+    monkeypatch.setattr(tasks, "apply_table", held_until_cancelled)
     out_dir = tmp_path / "out"
     out_dir.mkdir()
     pick_data(qtbot, dialog, HARVEST_2026)
@@ -384,3 +395,48 @@ def test_closing_while_writing_stops_the_write_and_leaves_no_file(
     assert not dialog.isVisible()
     assert list(out_dir.iterdir()) == []
     assert dialog.written_path() is None
+
+
+def test_saved_parameters_are_shown_in_plain_words(harvest_table):
+    from scalewright.engine import ColumnChoice, column_values, fit_column
+    from scalewright.gui.writing_dialog import saved_parameters
+
+    x = column_values(harvest_table.data, "yield_kg")
+    fc = fit_column(x, ColumnChoice("zscore").normalized(), column="yield_kg")
+    z = saved_parameters(fc)
+    assert f"mean {fc.pooled.params['mean']:.10g}" in z
+    assert "sample sd (divided by n − 1)" in z
+    assert "ddof" not in z and "=" not in z
+    choice = ColumnChoice("boxcox", {"standardize": True}).normalized()
+    b = saved_parameters(fit_column(x, choice, column="yield_kg"))
+    assert "standardized afterwards (mean 0, sd 1)" in b
+    assert "True" not in b and "standardize " not in b
+
+
+def test_choosing_files_during_a_read_reads_the_last_one_once(qtbot, dialog, monkeypatch):
+    import threading
+
+    release = threading.Event()
+    started: list[Path] = []
+    real = dialog._reader
+
+    def reader(path, sheet):
+        started.append(path)
+        read = real(path, sheet)
+
+        def slow(progress, cancelled):
+            while not (release.is_set() or cancelled()):
+                release.wait(0.01)
+            return read(progress, cancelled)
+
+        return slow
+
+    monkeypatch.setattr(dialog, "_reader", reader)
+    dialog.data_row.set_path(HARVEST_2025)
+    qtbot.waitUntil(lambda: dialog.is_busy(), timeout=30000)
+    dialog.data_row.set_path(SAMPLE / "harvest_2026.xlsx")  # both while the first read runs
+    dialog.data_row.set_path(HARVEST_2026)
+    release.set()
+    qtbot.waitUntil(lambda: not dialog.is_busy() and dialog._table is not None, timeout=30000)
+    assert started == [HARVEST_2025, HARVEST_2026]
+    assert dialog._table.source == HARVEST_2026

@@ -428,3 +428,26 @@ def test_column_facts_are_what_the_session_would_compute(harvest_table):
     assert s.values("yield_kg") is facts["yield_kg"].values  # used, not computed again
     assert s.summary("yield_kg") is facts["yield_kg"].summary
     assert s.suggestion("yield_kg") is facts["yield_kg"].suggestion
+    # the number of different values, for "Fit on rows where", is counted there too
+    assert facts.distinct["split"] == harvest_table.data["split"].nunique() == 2
+    assert "tree_code" not in facts.distinct  # identifiers cannot choose rows
+    assert s.distinct_count("split") == 2
+
+
+@pytest.mark.parametrize("method", ["zscore", "minmax", "maxabs", "robust", "decimal"])
+def test_scaled_figures_of_straight_lines_with_a_large_offset(tmp_path, method):
+    """Values near 1e16: the slope must not come from f(1) - f(0), which cancels away."""
+    import pandas as pd
+    from tests.gui.conftest import make_table
+
+    rng = np.random.default_rng(3)
+    x = 1e16 + rng.integers(0, 1_000_000, 500).astype(np.float64) * 16.0
+    s = Session()
+    s.load_table(make_table(pd.DataFrame({"x": x}), tmp_path / "big_offset.csv"))
+    s.set_choices({"x": ColumnChoice(method)})
+    fig = s.scaled_figures("x")
+    d = describe(s.fitted_column("x").forward(s.values("x")))
+    assert fig.n == d.count
+    for name in ("mean", "sd", "min", "max"):
+        got, want = getattr(fig, name), getattr(d, name)
+        assert got == pytest.approx(want, rel=1e-6, abs=1e-6 * d.sd), name

@@ -354,6 +354,7 @@ def test_cancelling_a_long_export_leaves_no_file(qtbot, window, big_table, tmp_p
     w.session.load_table(big_table)
     w.columns.select_labels(["yield_kg", "soil_ph"])
     choose_method(w, "boxcox")
+    qtbot.waitUntil(lambda: w.act_export.isEnabled(), timeout=30000)  # fitted in the background
     target = tmp_path / "big_scaled.csv"
     job = w.export(target)
     assert w.jobs.isVisible() and w.jobs.busy
@@ -488,8 +489,11 @@ def test_reopening_a_project_whose_data_moved(qtbot, opened, tmp_path, wait_job)
     data.rename(tmp_path / "elsewhere.csv")
     asked = []
     w.choose_source_for_project = lambda message: asked.append(message) or None
-    assert w.open_project(project_path) is None
+    w.open_project(project_path)  # the file is looked for in the background
+    wait_job(w)
     assert asked and "not found" in asked[0]
+    assert w.session.table.source == data  # not opened: what was open stays
+    assert w.session.choice("yield_kg").method == "robust"
     # pointing at the file's new place opens it
     w.choose_source_for_project = lambda message: str(tmp_path / "elsewhere.csv")
     w.open_project(project_path)
@@ -655,3 +659,177 @@ def test_the_application_icon_is_installed_and_loads(qapp):
     assert not icon.isNull()
     assert not icon.pixmap(32, 32).isNull()  # the SVG really renders
     assert not make_app().windowIcon().isNull()
+
+
+# ---------------------------------------------------------------- reviewed faults
+
+
+def _saved_project(qtbot, w, tmp_path, wait_job, method="zscore"):
+    data = tmp_path / "harvest.csv"
+    shutil.copy(HARVEST_2025, data)
+    w.load_data(data)
+    wait_job(w)
+    click_row(qtbot, w, "yield_kg")
+    choose_method(w, method)
+    project_path = tmp_path / "h.swproj"
+    assert w.save_project(project_path, wait=True)
+    return data, project_path
+
+
+def test_opening_a_project_shows_its_table_once_with_the_loading_jobs_figures(
+    qtbot, opened, tmp_path, wait_job, monkeypatch
+):
+    import threading
+
+    from scalewright.gui import state
+
+    w = opened
+    _, project_path = _saved_project(qtbot, w, tmp_path, wait_job)
+    on_screen_thread = []
+    real_describe, real_nunique = state.describe, pd.Series.nunique
+
+    def describe(values):
+        on_screen_thread.append(("describe", threading.current_thread() is threading.main_thread()))
+        return real_describe(values)
+
+    def nunique(series, *args, **kwargs):
+        on_screen_thread.append(("nunique", threading.current_thread() is threading.main_thread()))
+        return real_nunique(series, *args, **kwargs)
+
+    monkeypatch.setattr(state, "describe", describe)
+    monkeypatch.setattr(pd.Series, "nunique", nunique)
+    loads = []
+    w.session.table_loaded.connect(lambda: loads.append(w.session.choice("yield_kg").method))
+    w.open_project(project_path)
+    wait_job(w)
+    assert loads == ["zscore"]  # one load, with the project's choices already in it
+    assert on_screen_thread, "the loading job described the columns"
+    assert not [c for c in on_screen_thread if c[1]], on_screen_thread
+    for label in ("soil_ph", "fruit_count"):  # visiting columns later needs no pass either
+        click_row(qtbot, w, label)
+    assert not [c for c in on_screen_thread if c[1]], on_screen_thread
+    assert "split" in [w.method_panel.where_column.itemData(i)
+                       for i in range(w.method_panel.where_column.count())]
+
+
+def test_opening_a_project_looks_for_its_data_file_in_the_loading_job(
+    qtbot, opened, tmp_path, wait_job, monkeypatch
+):
+    import threading
+
+    from scalewright.gui import main_window
+
+    w = opened
+    _, project_path = _saved_project(qtbot, w, tmp_path, wait_job)
+    threads = []
+    real = main_window.locate_source
+
+    def locate(*args, **kwargs):
+        threads.append(threading.current_thread() is threading.main_thread())
+        return real(*args, **kwargs)
+
+    monkeypatch.setattr(main_window, "locate_source", locate)
+    w.open_project(project_path)
+    wait_job(w)
+    assert threads == [False]
+    assert w.session.project_path == project_path
+
+
+def test_a_moved_and_changed_data_file_picked_by_hand_asks_keep_or_refit(
+    qtbot, opened, tmp_path, wait_job
+):
+    w = opened
+    data, project_path = _saved_project(qtbot, w, tmp_path, wait_job)
+    saved = w.session.fitted_column("yield_kg").pooled.params
+    moved = tmp_path / "moved" / "harvest_now.csv"
+    moved.parent.mkdir()
+    data.rename(moved)
+    with moved.open("a", encoding="utf-8") as f:
+        f.write("999999,Hilltop,Russet,2001-04-01,24,80.1,5000.0,900,13.1,4000,0,6.5,train\n")
+    w.choose_source_for_project = lambda message: str(moved)
+    asked = []
+    w.ask_keep_saved_parameters = lambda name: asked.append(name) or False
+    w.open_project(project_path)
+    wait_job(w)
+    assert asked == ["harvest_now.csv"]
+    assert w.session.fitted_column("yield_kg").pooled.params["mean"] > saved["mean"]
+    assert "has changed" in w.last_message.text()
+    assert w.session.dirty
+
+
+def test_a_moved_unchanged_data_file_picked_by_hand_keeps_the_parameters_without_asking(
+    qtbot, opened, tmp_path, wait_job
+):
+    w = opened
+    data, project_path = _saved_project(qtbot, w, tmp_path, wait_job)
+    saved = w.session.fitted_column("yield_kg").pooled.params
+    moved = tmp_path / "moved.csv"
+    data.rename(moved)
+    w.choose_source_for_project = lambda message: str(moved)
+    w.ask_keep_saved_parameters = lambda name: pytest.fail("asked about an unchanged file")
+    w.open_project(project_path)
+    wait_job(w)
+    assert w.session.fitted_column("yield_kg").pooled.params == saved
+
+
+def test_kept_saved_parameters_keep_the_saved_files_fingerprint(qtbot, opened, tmp_path, wait_job):
+    w = opened
+    data, project_path = _saved_project(qtbot, w, tmp_path, wait_job)
+    first = load_project(project_path)
+    with data.open("a", encoding="utf-8") as f:
+        f.write("999999,Hilltop,Russet,2001-04-01,24,80.1,5000.0,900,13.1,4000,0,6.5,train\n")
+    w.ask_keep_saved_parameters = lambda name: True
+    w.open_project(project_path)
+    wait_job(w)
+    again = tmp_path / "again.swproj"
+    assert w.save_project(again, wait=True)
+    second = load_project(again)
+    assert second.plan["yield_kg"].pooled.params == first.plan["yield_kg"].pooled.params
+    assert (second.source_size, second.source_sha256) == (first.source_size, first.source_sha256)
+    assert second.plan.n_rows == first.plan.n_rows == 2412
+    # reopened on the file as it is now, the question is asked again
+    asked = []
+    w.ask_keep_saved_parameters = lambda name: asked.append(name) or True
+    w.open_project(again)
+    wait_job(w)
+    assert asked == ["harvest.csv"]
+
+
+def test_writing_waits_for_fits_still_running(qtbot, window, big_table, tmp_path, wait_job):
+    w = window
+    held = []
+    w.session.fit_runner = lambda work, deliver: held.append((work, deliver))
+    w.session.load_table(big_table)
+    w.columns.select_labels(["yield_kg"])
+    choose_method(w, "robust")
+    assert w.session.fitting("yield_kg")
+    writing = (w.act_save, w.act_save_as, w.act_export, w.act_apply, w.act_restore)
+    assert not any(a.isEnabled() for a in writing)
+    before = w.session.fit_count
+    assert not w.save_project(tmp_path / "p.swproj")  # refused, not fitted here
+    assert w.export(tmp_path / "x.csv") is None
+    assert w.session.fit_count == before and w.session.fitting("yield_kg")
+    assert not (tmp_path / "p.swproj").exists()
+    for work, deliver in held:
+        deliver(work())
+    assert not w.session.fitting("yield_kg")
+    assert all(a.isEnabled() for a in writing)
+    assert w.save_project(tmp_path / "p.swproj", wait=True)
+
+
+def test_export_uses_the_file_type_chosen_in_the_dialog(qtbot, opened, tmp_path, wait_job,
+                                                       monkeypatch):
+    from scalewright.gui import main_window
+
+    w = opened
+    click_row(qtbot, w, "yield_kg")
+    choose_method(w, "zscore")
+    monkeypatch.setattr(
+        main_window.QFileDialog,
+        "getSaveFileName",
+        lambda *a, **k: (str(tmp_path / "scaled"), "Comma-separated text (*.csv)"),
+    )
+    w.act_export.trigger()
+    wait_job(w)
+    assert (tmp_path / "scaled.csv").is_file()
+    assert not (tmp_path / "scaled.xlsx").exists()

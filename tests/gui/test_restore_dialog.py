@@ -88,7 +88,19 @@ def matched(dialog: RestoreDialog, column: str) -> str:
     return table.item(rows[0], 2).text()
 
 
-def test_predictions_are_restored_after_pairing_them_by_hand(qtbot, make_dialog, project, tmp_path):
+def test_predictions_are_restored_after_pairing_them_by_hand(
+    qtbot, make_dialog, project, tmp_path, monkeypatch
+):
+    from scalewright.gui import restore_dialog
+
+    # the preview prepares only the rows it shows, not the whole file
+    prepared = []
+    real = restore_dialog.tasks.blank_as_numbers
+    monkeypatch.setattr(
+        restore_dialog.tasks,
+        "blank_as_numbers",
+        lambda table, columns: prepared.append(len(table.data)) or real(table, columns),
+    )
     dialog = make_dialog(project)
     pick_data(qtbot, dialog, PREDICTIONS)
     pick_output(qtbot, dialog, tmp_path / "predicted_yield_kg.csv")
@@ -115,9 +127,16 @@ def test_predictions_are_restored_after_pairing_them_by_hand(qtbot, make_dialog,
     ]
     np.testing.assert_array_equal(preview.iloc[:, 0], scaled["predicted_yield"].iloc[:20])
     np.testing.assert_allclose(preview.iloc[:, 1], expected[:20], rtol=1e-12)
+    assert prepared and max(prepared) == 20
+    monkeypatch.undo()
     save_screenshot(dialog, "restore_dialog", tmp_path)
 
+    def read_again(*args, **kwargs):
+        raise AssertionError("the file was read a second time")
+
+    monkeypatch.setattr(tasks, "read_table", read_again)  # the table read is the one written
     save_and_wait(qtbot, dialog)
+    monkeypatch.undo()
     out = pd.read_csv(dialog.written_path(), dtype={"tree_code": str})
     np.testing.assert_allclose(out["predicted_yield"], expected, rtol=1e-12)
     assert out["tree_code"].tolist() == scaled["tree_code"].tolist()  # leading zeros kept
@@ -201,6 +220,9 @@ def test_parameters_from_a_scaled_workbook(qtbot, make_dialog, project, tmp_path
 
     pick_data(qtbot, dialog, PREDICTIONS)
     choose(qtbot, dialog.mapping_box("predicted_yield"), "yield_kg")
+    pick_output(qtbot, dialog, workbook)  # the parameters' own file is never written over
+    assert "the file the parameters come from" in dialog.output_problem()
+    assert not dialog.can_save()
     pick_output(qtbot, dialog, tmp_path / "predicted_yield_kg.tsv")
     save_and_wait(qtbot, dialog)
     out = pd.read_csv(dialog.written_path(), sep="\t", dtype={"tree_code": str})
@@ -260,13 +282,14 @@ def test_the_file_of_scaled_values_can_never_be_the_output(qtbot, make_dialog, p
     choose(qtbot, dialog.mapping_box("predicted_yield"), "yield_kg")
 
     pick_output(qtbot, dialog, data)
-    assert "This is the file of scaled values" in dialog.output_problem()
+    assert "the file the data was read from" in dialog.output_problem()
     assert not dialog.can_save()
     dialog.save()
     assert not dialog.is_busy()
     assert data.read_bytes() == PREDICTIONS.read_bytes()
-    pick_output(qtbot, dialog, HARVEST_2025)
-    assert "fitted on" in dialog.output_problem()
+    pick_output(qtbot, dialog, HARVEST_2025)  # the file the project was fitted on
+    assert str(HARVEST_2025) in dialog.output_problem()
+    assert not dialog.can_save()
     pick_output(qtbot, dialog, tmp_path / "fine.csv")
     assert dialog.output_problem() == ""
     assert dialog.can_save()

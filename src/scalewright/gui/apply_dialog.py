@@ -274,10 +274,7 @@ class ApplyDialog(WritingDialog):
     def _update_state(self) -> None:
         data_problem = self._data_problem()
         set_message(self.data_error, data_problem)
-        out_problem = self.output_check(
-            "This is the file being scaled. Choose another name, so that the original stays "
-            "as it is."
-        )
+        out_problem = self.output_check()
         set_message(self.output_error, out_problem)
         busy = self.runner.busy
         ready = (
@@ -307,12 +304,12 @@ class ApplyDialog(WritingDialog):
     # ------------------------------------------------------------------ writing
 
     def _writer(self, target: Path):
-        project, data_path = self._project, self.data_row.path()
-        sheet, clip = self.data_row.sheet(), self.clip()
+        # The table read for the preview is the one scaled: the file is not read again.
+        project, table, clip = self._project, self._table, self.clip()
 
         def write(progress, cancelled):
-            return tasks.apply_to_file(project, data_path, target, clip=clip, sheet=sheet,
-                                       progress=progress, cancelled=cancelled)
+            return tasks.apply_table(project, table, target, clip=clip,
+                                     progress=progress, cancelled=cancelled)
 
         return write
 

@@ -13,7 +13,7 @@ from PySide6.QtGui import QUndoCommand, QUndoStack
 
 from ..engine import ColumnChoice, FitSettings, get_method
 from ..errors import ScalewrightError
-from .state import Session, _choice_key, normalized
+from .state import Session, _choice_key
 
 SET_CHOICES_ID = 4101
 SET_SETTINGS_ID = 4102
@@ -94,7 +94,7 @@ def push_choices(
     """
     changed = {}
     for label, choice in new.items():
-        choice = normalized(choice)
+        choice = choice.normalized()
         if choice.method != "none" and not session.scalable(label):
             raise ScalewrightError(f"'{label}' is {session.why_not_scalable(label)}")
         if _choice_key(choice) != _choice_key(session.choice(label)):

@@ -19,21 +19,30 @@ from .. import io as swio
 from ..io.options import WORKBOOK_SUFFIXES
 from . import theme
 
-READ_FILTER = "Data files (*.csv *.tsv *.txt *.xlsx *.xlsm *.xls *.ods);;All files (*)"
-WRITE_FILTER = "Excel workbook (*.xlsx);;Comma-separated text (*.csv);;Tab-separated text (*.tsv)"
+_TYPE_NAMES = {".xlsx": "Excel workbook", ".csv": "Comma-separated text", ".tsv": "Tab-separated text"}
 
 
-def same_file(a: str | Path | None, b: str | Path | None) -> bool:
-    """True when both paths name the same file (resolved; existing files compared by inode)."""
-    if not a or not b:
-        return False
-    pa, pb = Path(a).expanduser(), Path(b).expanduser()
-    try:
-        if pa.exists() and pb.exists():
-            return pa.samefile(pb)
-    except OSError:
-        pass
-    return pa.resolve() == pb.resolve()
+def patterns(suffixes) -> str:
+    """``*.csv *.tsv`` for a file dialog's filter."""
+    return " ".join(f"*{s}" for s in suffixes)
+
+
+READ_FILTER = f"Data files ({patterns(swio.SUPPORTED_READ)});;All files (*)"
+# The first type is the one offered first (a workbook keeps the parameters beside the data).
+WRITE_TYPES = sorted(swio.SUPPORTED_WRITE, key=lambda s: (s != ".xlsx", s))
+WRITE_FILTER = ";;".join(
+    f"{_TYPE_NAMES.get(s, s.lstrip('.').upper() + ' file')} (*{s})" for s in WRITE_TYPES
+)
+
+
+def with_chosen_type(name: str | Path, chosen_filter: str) -> Path:
+    """The name a save dialog returned, ending as the file type chosen in it when the
+    name itself has no ending we can write (``scaled`` with "(*.csv)" -> ``scaled.csv``)."""
+    path = Path(name)
+    if path.suffix.lower() in swio.SUPPORTED_WRITE:
+        return path
+    wanted = next((s for s in WRITE_TYPES if f"*{s}" in chosen_filter), WRITE_TYPES[0])
+    return path.with_name(path.name + wanted)
 
 
 class FileRow(QWidget):
@@ -86,13 +95,6 @@ class FileRow(QWidget):
         self._fill_sheets(sheet)
         self.changed.emit()
 
-    def set_sheet(self, sheet: str) -> None:
-        i = self.sheet_box.findData(sheet)
-        if i < 0:
-            raise KeyError(sheet)
-        self.sheet_box.setCurrentIndex(i)
-        self.changed.emit()
-
     def browse(self) -> None:
         start = str(self.path().parent) if self.path() else ""
         name, _ = QFileDialog.getOpenFileName(self, self._caption, start, READ_FILTER)
@@ -125,10 +127,8 @@ class FileRow(QWidget):
 
 
 class OutputRow(QWidget):
-    """Where to save: a path field with a Choose button and an inline check of the name.
-
-    ``problem(forbidden)`` returns the reason the path cannot be used (or "").
-    """
+    """Where to save: a path field with a Choose button (the dialog checks the name with
+    ``tasks.check_target``)."""
 
     changed = Signal()
 
@@ -162,25 +162,4 @@ class OutputRow(QWidget):
         name, chosen = QFileDialog.getSaveFileName(self, "Save as", start, WRITE_FILTER)
         if not name:
             return
-        path = Path(name)
-        if path.suffix.lower() not in swio.SUPPORTED_WRITE:
-            path = path.with_suffix(
-                ".tsv" if "*.tsv" in chosen else ".csv" if "*.csv" in chosen else ".xlsx"
-            )
-        self.set_path(path)
-
-    def problem(self, forbidden: list[tuple[Path | None, str]]) -> str:
-        """Why the current path cannot be written ("" when it can)."""
-        path = self.path()
-        if path is None:
-            return ""
-        if path.suffix.lower() not in swio.SUPPORTED_WRITE:
-            return "Choose a name ending in .xlsx, .csv or .tsv; the ending sets the format."
-        for other, why in forbidden:
-            if other is not None and same_file(path, other):
-                return why
-        if path.exists() and path.is_dir():
-            return "This is a folder; add a file name."
-        if not path.parent.is_dir():
-            return f"The folder {path.parent} does not exist."
-        return ""
+        self.set_path(with_chosen_type(name, chosen))

@@ -12,6 +12,7 @@ Questions to the user go through ``ask_open_path``, ``ask_save_path`` and
 
 from __future__ import annotations
 
+import dataclasses
 from pathlib import Path
 from typing import Any
 
@@ -40,6 +41,7 @@ from . import commands, theme
 from .apply_dialog import ApplyDialog
 from .column_list import ColumnList
 from .errors import show_error
+from .file_rows import READ_FILTER, WRITE_FILTER, WRITE_TYPES, with_chosen_type
 from .histograms import HistogramPanel
 from .import_dialog import ImportDialog
 from .jobs import JobRunner, QuickCalls
@@ -49,14 +51,11 @@ from .restore_dialog import RestoreDialog
 from .state import Session, column_facts
 
 PROJECT_SUFFIX = ".swproj"
-READ_SUFFIXES = (".csv", ".tsv", ".txt", ".xlsx", ".xlsm", ".xls", ".ods")
-DATA_FILTER = "Data files (*.csv *.tsv *.txt *.xlsx *.xlsm *.xls *.ods);;All files (*)"
-PROJECT_FILTER = "Scalewright projects (*.swproj)"
-OPEN_ANY_FILTER = "Data or project files (*.csv *.tsv *.txt *.xlsx *.xlsm *.xls *.ods *.swproj)"
-EXPORT_FILTER = (
-    "Excel workbook with parameters (*.xlsx);;Comma-separated text (*.csv);;"
-    "Tab-separated text (*.tsv)"
-)
+READ_SUFFIXES = tuple(swio.SUPPORTED_READ)
+DATA_FILTER = READ_FILTER
+PROJECT_FILTER = f"Scalewright projects (*{PROJECT_SUFFIX})"
+PROJECT_OR_WORKBOOK_FILTER = f"Projects or scaled workbooks (*{PROJECT_SUFFIX} *.xlsx)"
+EXPORT_FILTER = WRITE_FILTER.replace("Excel workbook (", "Excel workbook with parameters (")
 MAX_RECENT = 8
 
 
@@ -81,6 +80,9 @@ class MainWindow(QMainWindow):
         self.stack = QUndoStack(self)
         self.last_message: QMessageBox | None = None
         self.import_dialog = None
+        # (saved project, its fitted columns) while saved parameters the user kept after
+        # the data file changed are in use; see _show_project.
+        self._kept = None
         self.apply_dialog = None
         self.restore_dialog = None
         self.setAcceptDrops(True)
@@ -152,6 +154,10 @@ class MainWindow(QMainWindow):
         self.session.dirty_changed.connect(self._update_title)
         self.session.project_path_changed.connect(lambda _p: self._update_title())
         self.session.table_loaded.connect(self._on_table)
+        # Writing waits for fits still running in the background (see _update_actions).
+        self.session.fitted.connect(self._update_actions)
+        self.session.choices_changed.connect(self._update_actions)
+        self.session.settings_changed.connect(self._update_actions)
         self.stack.cleanChanged.connect(self._on_clean)
         self._update_title()
         self._on_table()
@@ -360,28 +366,37 @@ class MainWindow(QMainWindow):
             self.session.set_dirty(False)
 
     def _on_table(self) -> None:
-        has = self.session.table is not None
-        for a in (
-            self.act_save,
-            self.act_save_as,
-            self.act_export,
-            self.act_suggest,
-            self.act_leave,
-            self.act_select_all,
-        ):
-            a.setEnabled(has and not self.jobs.busy)
+        self._update_actions()
         self._update_title()
 
     def _on_busy(self, busy: bool) -> None:
         for a in (
             self.act_open,
             self.act_open_project,
-            self.act_apply,
-            self.act_restore,
             self.recent_menu.menuAction(),
         ):
             a.setEnabled(not busy)
-        self._on_table()
+        self._update_actions()
+
+    def _update_actions(self, *_args) -> None:
+        """Enable what can be done now: nothing that writes while a job runs or while a
+        column is still being fitted in the background."""
+        has = self.session.table is not None
+        idle = not self.jobs.busy
+        fitted = not self.session.fits_pending
+        for a in (self.act_save, self.act_save_as, self.act_export):
+            a.setEnabled(has and idle and fitted)
+        for a in (self.act_suggest, self.act_leave, self.act_select_all):
+            a.setEnabled(has and idle)
+        for a in (self.act_apply, self.act_restore):
+            a.setEnabled(idle and fitted)
+
+    def _still_fitting(self) -> bool:
+        """True (and says so) while a column is still being fitted in the background."""
+        if self.session.fits_pending:
+            self.notify("A column is still being fitted; try again when it is done")
+            return True
+        return False
 
     def show_message(self, err: BaseException | str, details: str | None = None) -> QMessageBox:
         """A short plain message (details on demand); the window keeps everything as it was."""
@@ -399,7 +414,9 @@ class MainWindow(QMainWindow):
 
     def ask_save_path(self, title: str, filter_: str, suggested: str = "") -> str | None:
         start = str(Path(self._last_dir()) / suggested) if suggested else self._last_dir()
-        path, _ = QFileDialog.getSaveFileName(self, title, start, filter_)
+        path, chosen = QFileDialog.getSaveFileName(self, title, start, filter_)
+        if path and any(f"*{s}" in chosen for s in WRITE_TYPES):
+            path = str(with_chosen_type(path, chosen))  # the type chosen sets the ending
         return path or None
 
     def ask_unsaved_changes(self) -> str:
@@ -468,33 +485,50 @@ class MainWindow(QMainWindow):
         self.import_dialog = dialog
         return dialog
 
-    def load_data(self, path: str | Path, options: Any = None, *, then=None):
-        """Read the file in the background and show it; on error nothing changes."""
+    def load_data(self, path: str | Path, options: Any = None, *, find=None, show=None):
+        """Read the file in the background and show it; on error nothing changes.
+
+        The job also computes every number column's figures, so that showing the table
+        does no pass over the values on the interface thread. Opening a project uses the
+        two hooks: ``find()`` runs first in the job and returns ``(file to read or None,
+        anything)``; ``show(table, facts, found)`` then shows the table in place of the
+        plain ``session.load_table`` (exactly one call, with the facts) and returns True
+        when it did; with no file to read it is called with ``table`` None.
+        """
         path = Path(path)
         bins = self.session.bins
 
         def work(progress, cancelled):
-            table = swio.read_table(path, options, progress=progress, cancelled=cancelled)
+            where, found = (path, None) if find is None else find()
+            if where is None:
+                return None, None, found
+            table = swio.read_table(where, options, progress=progress, cancelled=cancelled)
             # Histogram and summary of every number column, here rather than on the
             # interface thread the first time each column is selected.
             facts = column_facts(table, bins, cancelled)
             if cancelled():
                 raise Cancelled()
-            return table, facts
+            return table, facts, found
 
         def done(result) -> None:
-            table, facts = result
-            self.session.load_table(table, facts=facts)
-            self.stack.clear()
-            self.stack.setClean()
-            self.add_recent(path)
-            self._remember_dir(path)
-            notes = list(getattr(table, "notes", []) or [])
-            self.notify(
-                f"Opened {path.name}: {len(table.data):,} rows" + (f". {notes[0]}" if notes else "")
-            )
-            if then is not None:
-                then(table)
+            table, facts, found = result
+            if show is not None:
+                if not show(table, facts, found):
+                    return
+            else:
+                self.session.load_table(table, facts=facts)
+                self._kept = None
+                self.stack.clear()
+                self.stack.setClean()
+            source = Path(table.source)
+            self.add_recent(source)
+            self._remember_dir(source)
+            if show is None:
+                notes = list(getattr(table, "notes", []) or [])
+                self.notify(
+                    f"Opened {source.name}: {len(table.data):,} rows"
+                    + (f". {notes[0]}" if notes else "")
+                )
 
         return self.jobs.run(
             f"Reading {path.name}",
@@ -538,58 +572,86 @@ class MainWindow(QMainWindow):
         return box.clickedButton() is keep
 
     def open_project(self, path: str | Path, *, asked: bool = False):
-        """Load a project and its data file; the choices are fitted again on that data."""
+        """Load a project and its data file (found, checked and read in the background).
+
+        The saved parameters are used when the data file is as it was when they were
+        fitted; when it changed, the user chooses to keep them or fit again.
+        """
         if not asked and not self._may_discard():
             return None
         path = Path(path)
         try:
             project = load_project(path)
-            check = locate_source(project, path)
         except ScalewrightError as err:
             self.show_message(err)
             return None
-        source = check.path
-        if source is None:
-            chosen = self.choose_source_for_project(check.message)
-            if not chosen:
-                self.notify("The project was not opened: its data file was not found")
-                return None
-            source = Path(chosen)
+        return self._open_project_with(path, project, None)
 
-        def shown(table) -> None:
-            missing = [c for c in project.choices if c not in table.data.columns]
-            keep = project.plan is not None and (
-                not check.changed or self.ask_keep_saved_parameters(source.name)
+    def _open_project_with(self, path: Path, project, chosen: Path | None):
+        """Read the project's data file (``chosen`` by the user when it was not found)."""
+
+        def find():
+            if chosen is None:
+                check = locate_source(project, path)
+            else:  # compared with the saved size and SHA-256 like the file at its old place
+                check = locate_source(dataclasses.replace(project, source=chosen), None)
+            return check.path, check
+
+        def show(table, facts, check) -> bool:
+            if table is None:
+                picked = self.choose_source_for_project(check.message)
+                if not picked:
+                    self.notify("The project was not opened: its data file was not found")
+                else:
+                    self._open_project_with(path, project, Path(picked))
+                return False
+            return self._show_project(path, project, check, table, facts)
+
+        return self.load_data(
+            project.source or path, project.read_options, find=find, show=show
+        )
+
+    def _show_project(self, path: Path, project, check, table, facts) -> bool:
+        source = Path(table.source)
+        missing = [c for c in project.choices if c not in table.data.columns]
+        keep = project.plan is not None and (
+            not check.changed or self.ask_keep_saved_parameters(source.name)
+        )
+        try:
+            self.session.load_table(
+                table,
+                choices=project.choices,
+                settings=project.settings,
+                project_path=path,
+                fitted=project.plan.columns if keep else None,
+                facts=facts,
             )
-            try:
-                self.session.load_table(
-                    table,
-                    choices=project.choices,
-                    settings=project.settings,
-                    project_path=path,
-                    fitted=project.plan.columns if keep else None,
-                )
-            except ScalewrightError as err:
-                self.show_message(err)
-                return
-            self.add_recent(path)
-            notes = []
-            if check.changed:
-                notes.append(
-                    "the data file has changed since the project was saved; "
-                    + ("the saved parameters were kept" if keep else
-                       "the parameters were fitted again on the current data")
-                )
-                self.session.set_dirty(True)
-            if missing:
-                notes.append("not in the data any more: " + ", ".join(missing))
-            if source != check.path:
-                self.session.set_dirty(True)  # the data file moved: the project should be saved
-            if notes:
-                self.show_message("Opened the project; " + "; ".join(notes) + ".")
-            self.notify(f"Opened project {path.name} with {source.name}")
-
-        return self.load_data(source, project.read_options, then=shown)
+        except ScalewrightError as err:
+            self.show_message(err)
+            return False
+        # Parameters kept from a file that has changed since are recorded as fitted on
+        # that file (its size and SHA-256, its number of rows), not on this one.
+        self._kept = (
+            (project, dict(project.plan.columns)) if keep and check.changed else None
+        )
+        self.add_recent(path)
+        notes = []
+        if check.changed:
+            notes.append(
+                "the data file has changed since the project was saved; "
+                + ("the saved parameters were kept" if keep else
+                   "the parameters were fitted again on the current data")
+            )
+        if missing:
+            notes.append("not in the data any more: " + ", ".join(missing))
+        self.stack.clear()
+        self.stack.setClean()
+        if check.changed or source != project.source:
+            self.session.set_dirty(True)  # changed or moved: the project should be saved
+        if notes:
+            self.show_message("Opened the project; " + "; ".join(notes) + ".")
+        self.notify(f"Opened project {path.name} with {source.name}")
+        return True
 
     # ================================================================== saving and exporting
 
@@ -603,6 +665,16 @@ class MainWindow(QMainWindow):
         choices = self.session.chosen()
         settings = self.session.settings
         plan = self.session.plan()  # cached fits; callers checked problems() first
+        kept = self._kept
+        if kept is not None and any(
+            plan.columns.get(label) is fc for label, fc in kept[1].items()
+        ):
+            saved = kept[0]
+            plan = dataclasses.replace(plan, n_rows=saved.plan.n_rows)
+            fingerprint = (saved.source_size, saved.source_sha256)
+            return lambda: tasks.fit_project(
+                table, choices, settings, plan=plan, fingerprint=fingerprint
+            )
         return lambda: tasks.fit_project(table, choices, settings, plan=plan)
 
     def save(self, *, wait: bool = False) -> bool:
@@ -626,9 +698,14 @@ class MainWindow(QMainWindow):
         """Fit the choices and write the project file (in the background)."""
         if self.session.table is None:
             return False
+        if self.session.fits_pending:
+            if not wait:
+                self._still_fitting()
+                return False
+            self._wait_for_fits()
         problems = self.session.problems()
         if problems:
-            label, reason = next(iter(problems.items()))
+            reason = next(iter(problems.values()))
             self.show_message(f"The project was not saved: {reason}")
             return False
         path = Path(path)
@@ -660,6 +737,13 @@ class MainWindow(QMainWindow):
             return result["ok"]
         return True
 
+    def _wait_for_fits(self) -> None:
+        """Let the background fits land (saving before closing cannot wait for a click)."""
+        from PySide6.QtCore import QCoreApplication
+
+        self.fits.wait()
+        QCoreApplication.processEvents()  # deliver their results
+
     def _wait_for(self, job) -> None:
         from PySide6.QtCore import QEventLoop
 
@@ -676,9 +760,9 @@ class MainWindow(QMainWindow):
         if path:
             self.export(path)
 
-    def export(self, target: str | Path, *, clip: bool = False):
+    def export(self, target: str | Path):
         """Write the scaled table (workbook with parameters, or CSV/TSV) in the background."""
-        if self.session.table is None:
+        if self.session.table is None or self._still_fitting():
             return None
         problems = self.session.problems()
         if problems:
@@ -693,7 +777,7 @@ class MainWindow(QMainWindow):
         def work(progress, cancelled):
             project = make()
             return tasks.export_scaled(
-                table, project, target, clip=clip, progress=progress, cancelled=cancelled
+                table, project, target, progress=progress, cancelled=cancelled
             )
 
         def done(reports) -> None:
@@ -715,16 +799,16 @@ class MainWindow(QMainWindow):
         """Call ``then(project)`` with the project for the current choices (fitted in the
         background), or with one the user picks when no data is open."""
         if self.session.table is not None and self.session.chosen():
+            if self._still_fitting():
+                return
             problems = self.session.problems()
             if problems:
                 self.show_message(next(iter(problems.values())))
                 return
-            make = self._project_job()
-            self.jobs.run("Fitting", lambda p, c: make(), then, self.show_message)
+            make = self._project_job()  # the fits are done: this records them
+            self.jobs.run("Preparing the parameters", lambda p, c: make(), then, self.show_message)
             return
-        path = self.ask_open_path(
-            "Which project?", "Projects or scaled workbooks (*.swproj *.xlsx)"
-        )
+        path = self.ask_open_path("Which project?", PROJECT_OR_WORKBOOK_FILTER)
         if not path:
             return
         try:
@@ -762,10 +846,6 @@ class MainWindow(QMainWindow):
         dialog.setModal(True)
         dialog.open()
         self.restore_dialog = dialog
-
-    def _report_written(self, target, lines: list[str]) -> None:
-        self.file_written.emit(Path(target))
-        self.show_message(f"Wrote {Path(target).name}.", details="\n".join(lines))
 
     # ================================================================== edit helpers
 

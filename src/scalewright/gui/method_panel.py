@@ -26,7 +26,7 @@ from PySide6.QtWidgets import (
 from ..engine import METHODS, FitSettings, OptionSpec, get_method
 from ..errors import ScalewrightError
 from . import commands, theme
-from .state import Session
+from .state import FIT_WHERE_KINDS, Session
 
 # Plain words for each option (the engine's option names stay the stored names).
 OPTION_LABELS = {
@@ -46,7 +46,6 @@ CHOICE_LABELS = {
 }
 ALL_ROWS = "all rows"
 NO_GROUPS = "no groups"
-FIT_COLUMN_KINDS = ("text", "boolean", "number")
 MAX_FIT_VALUES = 50  # columns with more different values are not offered for choosing rows
 
 
@@ -184,9 +183,9 @@ class MethodPanel(QWidget):
         cands = []
         if s.table is not None:
             for label in s.labels:
-                if s.kind(label) not in FIT_COLUMN_KINDS:
+                if s.kind(label) not in FIT_WHERE_KINDS:
                     continue
-                if s.data[label].nunique(dropna=True) <= MAX_FIT_VALUES:
+                if s.distinct_count(label) <= MAX_FIT_VALUES:
                     cands.append(label)
         self._fit_candidates = cands
         self.reason.setText("")

@@ -12,6 +12,7 @@ scaled workbook chosen here (a workbook written by Scalewright carries its proje
 
 from __future__ import annotations
 
+import dataclasses
 from pathlib import Path
 
 import pandas as pd
@@ -371,7 +372,8 @@ class RestoreDialog(WritingDialog):
         notes: list[str] = []
         frame = pd.DataFrame()
         if self._table is not None and mapping and self._project is not None:
-            head = tasks.blank_as_numbers(self._table, mapping).iloc[:PREVIEW_ROWS]
+            first = dataclasses.replace(self._table, data=self._table.data.iloc[:PREVIEW_ROWS])
+            head = tasks.blank_as_numbers(first, mapping)  # only the rows shown
             try:
                 restored, reports = engine.restore(head, self._project.plan, mapping)
             except ScalewrightError as err:
@@ -412,9 +414,7 @@ class RestoreDialog(WritingDialog):
     def _update_state(self) -> None:
         data_problem = self._data_problem()
         set_message(self.data_error, data_problem)
-        out_problem = self.output_check(
-            "This is the file of scaled values. Choose another name, so that it stays as it is."
-        )
+        out_problem = self.output_check()
         set_message(self.output_error, out_problem)
         mapping = self.mapping()
         ready = (
@@ -452,12 +452,12 @@ class RestoreDialog(WritingDialog):
     # ------------------------------------------------------------------ writing
 
     def _writer(self, target: Path):
-        project, data_path = self._project, self.data_row.path()
-        sheet, mapping = self.data_row.sheet(), self.mapping()
+        # The table read for the mapping and preview is the one restored (no second read).
+        project, table, mapping = self._project, self._table, self.mapping()
 
         def write(progress, cancelled):
-            return tasks.restore_file(project, data_path, target, mapping=mapping, exact=True,
-                                      sheet=sheet, progress=progress, cancelled=cancelled)
+            return tasks.restore_table(project, table, target, mapping=mapping, exact=True,
+                                       progress=progress, cancelled=cancelled)
 
         return write
 

@@ -20,7 +20,8 @@ Caching rules (so that the window stays quick at a million rows):
   ``fit_runner`` when the window has attached one: the column is then ``fitting`` until
   the result lands and ``fitted`` is emitted again. Until then the display calls say
   "nothing yet" (no edges, no figures, no warnings) instead of waiting, while ``plan``
-  and ``problems`` (used before writing anything) fit at once if they must.
+  and ``problems`` (used before writing anything) fit at once if they must; the window
+  therefore keeps its writing actions off while ``fits_pending``.
 """
 
 from __future__ import annotations
@@ -70,6 +71,9 @@ BACKGROUND_VALUES = 200_000
 # Methods whose forward map is a straight line a*x + b: their scaled summary figures follow
 # exactly from the original ones, without touching the values.
 AFFINE_METHODS = frozenset({"none", "minmax", "zscore", "decimal", "robust", "maxabs"})
+
+# Kinds of columns whose values can say which rows to fit on ("Fit on rows where").
+FIT_WHERE_KINDS = ("text", "boolean", "number")
 
 # Kinds that can be scaled; everything else is listed but greyed out.
 _WHY_NOT = {
@@ -137,22 +141,40 @@ class ColumnFacts:
     suggestion: Suggestion
 
 
+class TableFacts(dict):
+    """``column_facts``: label -> ColumnFacts of every number column, and ``distinct``,
+    label -> how many different values a column that can choose the fitted rows holds."""
+
+    def __init__(self) -> None:
+        super().__init__()
+        self.distinct: dict[str, int] = {}
+
+
+def distinct_count(data: pd.DataFrame, label: str) -> int:
+    """How many different values (blanks not counted) a column holds."""
+    return int(data[label].nunique(dropna=True))
+
+
 def column_facts(
     table: Any,
     bins: int = BINS,
     cancelled: Callable[[], bool] | None = None,
-) -> dict[str, ColumnFacts]:
-    """Values, histogram, summary and suggestion of every number column of a table.
+) -> TableFacts:
+    """Values, histogram, summary and suggestion of every number column of a table, and
+    the number of different values of every column that can choose the fitted rows.
 
     Pure numpy work on a table nobody else holds yet: the window runs it in the job that
     reads the file, so that visiting a column later costs no pass over its values.
     """
-    out: dict[str, ColumnFacts] = {}
+    out = TableFacts()
     for label in (str(c) for c in table.data.columns):
-        if str(table.kinds.get(label, "text")) != "number":
-            continue
         if cancelled is not None and cancelled():
             break
+        kind = str(table.kinds.get(label, "text"))
+        if kind in FIT_WHERE_KINDS:
+            out.distinct[label] = distinct_count(table.data, label)
+        if kind != "number":
+            continue
         values = column_values(table.data, label)
         summary = describe(values)
         out[label] = ColumnFacts(values, histogram(values, bins), summary, suggest(summary))
@@ -211,13 +233,23 @@ def _fit_in_background(
     return fc, figures
 
 
+def _line_figures(s: ColumnSummary, fc: FittedColumn) -> Figures:
+    """Scaled figures of a straight-line method, from the original ones.
+
+    The map is evaluated at the figures themselves and the slope taken across the values'
+    own range: at values near 1e16, f(1) - f(0) would lose every digit to rounding.
+    """
+    if s.count == 0:
+        nan = float("nan")
+        return Figures(0, s.missing, nan, nan, nan, nan, nan)
+    lo, mean, hi = (float(v) for v in fc.forward(np.array([s.min, s.mean, s.max])))
+    slope = (hi - lo) / (s.max - s.min) if s.max > s.min else 1.0
+    skew = s.skewness if slope > 0 else (float("nan") if slope == 0 else -s.skewness)
+    return Figures(s.count, s.missing, mean, abs(slope) * s.sd, lo, hi, skew)
+
+
 def _choice_key(choice: ColumnChoice) -> tuple:
     return (choice.method, tuple(sorted((k, repr(v)) for k, v in choice.options.items())))
-
-
-def normalized(choice: ColumnChoice) -> ColumnChoice:
-    """The choice with every option filled in (an OptionError if it is not valid)."""
-    return choice.normalized()
 
 
 class Session:
@@ -255,6 +287,7 @@ class Session:
         self._hist: dict[str, Histogram] = {}
         self._summary: dict[str, ColumnSummary] = {}
         self._suggestion: dict[str, Suggestion] = {}
+        self._distinct: dict[str, int] = {}
         self._clear_fits()
 
     def _clear_fits(self) -> None:
@@ -337,7 +370,7 @@ class Session:
         new_choices: dict[str, ColumnChoice] = {}
         for label, choice in (choices or {}).items():
             if label in labels:
-                new_choices[label] = normalized(choice)
+                new_choices[label] = choice.normalized()
         self.table = table
         self._clear_caches()
         self._choices = {lab: new_choices.get(lab, ColumnChoice()) for lab in labels}
@@ -350,6 +383,9 @@ class Session:
                 self._hist[label] = f.histogram
                 self._summary[label] = f.summary
                 self._suggestion[label] = f.suggestion
+        for label, n in getattr(facts, "distinct", {}).items():
+            if label in labels:
+                self._distinct[label] = n
         for label, fc in (fitted or {}).items():
             choice = self._choices.get(label)
             if choice is not None and (fc.method, dict(fc.options)) == (
@@ -389,7 +425,7 @@ class Session:
         for label, choice in new.items():  # check everything before changing anything
             if label not in self._choices:
                 raise ScalewrightError(f"there is no column '{label}'")
-            choice = normalized(choice)
+            choice = choice.normalized()
             if choice.method != "none" and not self.scalable(label):
                 raise ScalewrightError(f"'{label}' is {self.why_not_scalable(label)}")
             checked[label] = choice
@@ -451,6 +487,12 @@ class Session:
                 self._settings_error = str(err)
                 self._fit_mask, self._group_keys = None, None
         return self._fit_mask, self._group_keys
+
+    def distinct_count(self, label: str) -> int:
+        """How many different values the column holds (counted when the file was read)."""
+        if label not in self._distinct:
+            self._distinct[label] = distinct_count(self.data, label)
+        return self._distinct[label]
 
     def values_of_fit_column(self, label: str) -> list[str]:
         """The distinct values of a column, as text, for 'Fit on rows where'."""
@@ -529,6 +571,12 @@ class Session:
             return False
         key = _choice_key(choice)
         return (label, key) in self._pending and key not in self._fits.get(label, {})
+
+    @property
+    def fits_pending(self) -> bool:
+        """True while any chosen column is still being fitted in the background (then
+        ``plan`` and ``problems`` would fit it on this thread: writing waits instead)."""
+        return any(self.fitting(label) for label in self.chosen())
 
     def fit_state(self, label: str) -> FittedColumn | str | None:
         """The column's fitted parameters, the fit's error text, or None for 'leave as is'.
@@ -651,14 +699,7 @@ class Session:
             return cached
         s = self.summary(label)
         if not _needs_values_for_figures(state):
-            b, one = state.forward(np.array([0.0, 1.0]))
-            a = float(one - b)
-
-            def f(v: float) -> float:
-                return a * v + float(b)
-
-            skew = s.skewness if a > 0 else (float("nan") if a == 0 else -s.skewness)
-            out = Figures(s.count, s.missing, f(s.mean), abs(a) * s.sd, f(s.min), f(s.max), skew)
+            out = _line_figures(s, state)
         else:
             out = figures_of(self.scaled_values(label))
         self._scaled_figures[id(state)] = out

@@ -30,7 +30,7 @@ from PySide6.QtWidgets import (
     QWidget,
 )
 
-from .. import engine
+from .. import engine, tasks
 from .. import io as swio
 from ..errors import ScalewrightError
 from . import jobs, theme
@@ -38,18 +38,45 @@ from .errors import details_of, plain_message
 from .file_rows import FileRow, OutputRow
 from .widgets import ERROR_STYLE, MUTED_STYLE, OK_STYLE, escape_html, message_label
 
-FITTED_ON_WHY = (
-    "This is the file the project was fitted on. Choose another name, so that it stays as "
-    "it is."
-)
+# The engine's parameter names, in words a reader of the dialog knows.
+PARAMETER_WORDS = {
+    "min": "smallest",
+    "max": "largest",
+    "low": "smallest becomes",
+    "high": "largest becomes",
+    "q1": "first quartile",
+    "q3": "third quartile",
+    "scale": "spread (q3 − q1)",
+    "maxabs": "largest size",
+    "j": "divided by 10 to the power",
+    "shift": "added first",
+    "base": "logarithm base",
+    "quantile_rule": "quartiles by",
+}
+# Switches and settings said as what they mean rather than as name = value.
+PARAMETER_SAYINGS = {
+    ("ddof", 1): "sample sd (divided by n − 1)",
+    ("ddof", 0): "population sd (divided by n)",
+    ("standardize", True): "standardized afterwards (mean 0, sd 1)",
+    ("standardize", False): "not standardized afterwards",
+}
 
 
 def saved_parameters(fc) -> str:
-    """A fitted column's pooled parameters in one line, e.g. 'mean = 75.5, sd = 36.7'."""
-    return ", ".join(
-        f"{k} = {v:.10g}" if isinstance(v, float) else f"{k} = {v}"
-        for k, v in fc.pooled.params.items()
-    )
+    """A fitted column's pooled parameters in one line of plain words, e.g. 'mean 75.5,
+    sd 36.7, sample sd (divided by n − 1)'."""
+    parts = []
+    for key, value in fc.pooled.params.items():
+        said = PARAMETER_SAYINGS.get((key, value))
+        if said is not None:
+            parts.append(said)
+            continue
+        if isinstance(value, bool):
+            value = "yes" if value else "no"
+        elif isinstance(value, float):
+            value = f"{value:.10g}"
+        parts.append(f"{PARAMETER_WORDS.get(key, key)} {value}")
+    return ", ".join(parts)
 
 
 def boxed(title: str, *widgets: QWidget) -> QGroupBox:
@@ -81,6 +108,7 @@ class WritingDialog(QDialog):
         self._written: Path | None = None
         self._reports: list[engine.ColumnReport] = []
         self._close_when_idle = False
+        self._reload_queued = False  # a read is being stopped to read the chosen file
         self.runner = jobs.JobRunner(self)
         self.runner.busy_changed.connect(self._on_busy)
         # Return in a path field must never press Cancel (which takes the focus, and with
@@ -204,12 +232,18 @@ class WritingDialog(QDialog):
         self.output_row.suggested_folder = path.parent
         if self.runner.busy:  # a read of another file is still running: stop it first
             self.cancel_job()
-            self.runner.job.ended.connect(self._load_data)
+            if not self._reload_queued:  # one reload, of whatever is chosen by then
+                self._reload_queued = True
+                self.runner.job.ended.connect(self._reload)
             return
         if self.reading_label is not None:
             self.reading_label.setText(f"Reading {escape_html(path.name)}…")
         self.run_job(f"Reading {path.name}…", self._reader(path, sheet), self._data_read,
                      self._data_failed, self._data_stopped)
+
+    def _reload(self) -> None:
+        self._reload_queued = False
+        self._load_data()
 
     def _data_read(self, result) -> None:
         self._take_read(result)
@@ -225,15 +259,20 @@ class WritingDialog(QDialog):
         self._read_error = self.stopped_reading
         self._show_file()
 
-    def output_check(self, data_why: str) -> str:
-        """Why the output path cannot be written: it is the file being read (``data_why``),
-        the project's own data file, or otherwise unusable ("" when it can be written)."""
-        source = getattr(self._project, "source", None)
-        problem = self.output_row.problem([
-            (self.data_row.path(), data_why),
-            (Path(source) if source else None, FITTED_ON_WHY),
-        ])
-        return problem
+    def output_check(self) -> str:
+        """Why the output path cannot be written ("" when it can): what the tasks refuse
+        (the file being read, the project's data file or the file its parameters come
+        from, a format not written, a folder), or a folder that does not exist."""
+        path = self.output_row.path()
+        if path is None:
+            return ""
+        try:
+            tasks.check_target(path, source=self.data_row.path(), project=self._project)
+        except ScalewrightError as err:
+            return str(err)
+        if not path.parent.is_dir():
+            return f"The folder {path.parent} does not exist."
+        return ""
 
     # ------------------------------------------------------------------ writing
 
