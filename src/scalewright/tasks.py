@@ -196,7 +196,12 @@ def check_target(
             project.loaded_from,
             "this is the file the parameters come from; choose another name so it stays as it is",
         )
-        ensure_not_source(target, project.source)
+        _ensure_not(
+            target,
+            project.source,
+            "this is the data file the parameters were fitted on; choose another name so it "
+            "stays as it is",
+        )
     if target.is_dir():
         raise WriteError(target, "this is a folder; give a file name")
     return target

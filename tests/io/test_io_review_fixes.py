@@ -133,3 +133,18 @@ def test_large_file_keeps_trailing_missing_rows(tmp_path, monkeypatch, columns):
     assert len(back.data) == n
     assert back.data["c,0"].isna().sum() == 3
     np.testing.assert_array_equal(back.data["c,0"].to_numpy(float)[: n - 3], x[: n - 3])
+
+
+def test_a_comma_in_the_header_of_a_one_column_tsv_is_not_a_delimiter(tmp_path):
+    # Found by the round-trip property test: header ',' over the value 0.0 was read as two
+    # columns split by the comma, then refused as a ragged row.
+    import numpy as np
+    import pandas as pd
+
+    from scalewright.io import read_table, write_table
+
+    path = tmp_path / "one.tsv"
+    write_table(path, pd.DataFrame({"f0": [0.0, 2.5]}), [","])
+    table = read_table(path)
+    assert table.headers == [","]
+    np.testing.assert_array_equal(table.data.iloc[:, 0].to_numpy(float), [0.0, 2.5])

@@ -408,7 +408,7 @@ def test_write_output_refuses_sources_and_bad_names(harvest, tmp_path):
     with pytest.raises(WriteError, match="the file the data was read from"):
         export_scaled(table, project, data)
     other = read_table(HARVEST_2026)
-    with pytest.raises(WriteError, match="the file the data was read from"):
+    with pytest.raises(WriteError, match="the data file the parameters were fitted on"):
         write_output(data, other, None, project)  # the project's own source
     assert data.read_bytes() == before
     for name, message in [

@@ -111,7 +111,8 @@ def _read_text(path, options, raw, preview_rows, streamed, progress, cancelled) 
     sample = _sample_text(data)
     if not sample.strip():
         raise ReadError(path, "the file has no data (only blank lines)")
-    delimiter = options.delimiter or det.detect_delimiter(sample)
+    default = "\t" if path.suffix.lower() == ".tsv" else ","
+    delimiter = options.delimiter or det.detect_delimiter(sample, default)
     if options.delimiter is None:
         notes.append(f"Columns separated by {det.describe_delimiter(delimiter)}.")
     rows = det.parse_rows(sample, delimiter)

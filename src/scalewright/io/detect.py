@@ -97,9 +97,14 @@ def parse_rows(text: str, delimiter: str, limit: int = SAMPLE_ROWS) -> list[tupl
     return rows
 
 
-def detect_delimiter(text: str) -> str:
-    """The candidate that splits the most lines into the same number (>1) of fields."""
-    best, best_score = ",", (-1, 0, 0)
+def detect_delimiter(text: str, default: str = ",") -> str:
+    """The candidate that splits the most lines into the same number (>1) of fields.
+
+    A candidate must split at least two lines, and more than half of them, alike: a comma
+    inside the one header of a one-column file is not a delimiter. With no such candidate, ``default`` (a tab for
+    ``.tsv`` files, else a comma) is the answer.
+    """
+    best, best_score = default, (-1, 0, 0)
     for rank, cand in enumerate(("\t", ";", "|", ",")):
         if cand not in text:
             continue
@@ -108,7 +113,7 @@ def detect_delimiter(text: str) -> str:
         if not counts:
             continue
         mode, n = Counter(counts).most_common(1)[0]
-        if mode < 2:
+        if mode < 2 or n < 2 or 2 * n <= len(counts):
             continue
         score = (n, mode, -rank)
         if score > best_score:
