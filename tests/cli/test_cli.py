@@ -17,9 +17,7 @@ import pytest
 
 from scalewright import cli
 from scalewright.io import read_table
-
-# Not imported from conftest: several test folders have a conftest module of that name.
-SAMPLE_DATA = Path(__file__).resolve().parents[2] / "sample_data"
+from support import SAMPLE_DATA
 
 COMMAND = shutil.which("scalewright")
 

@@ -27,9 +27,7 @@ from scalewright.project import (
     save_project,
 )
 from scalewright.tasks import fit_project
-
-# Not imported from conftest: several test folders have a conftest module of that name.
-SAMPLE_DATA = Path(__file__).resolve().parents[2] / "sample_data"
+from support import SAMPLE_DATA
 
 FIXTURES = Path(__file__).parent / "fixtures"
 HARVEST = SAMPLE_DATA / "harvest_2025.csv"

@@ -27,9 +27,7 @@ from scalewright.tasks import (
     scaled_data,
     write_output,
 )
-
-# Not imported from conftest: several test folders have a conftest module of that name.
-SAMPLE_DATA = Path(__file__).resolve().parents[2] / "sample_data"
+from support import SAMPLE_DATA
 
 HARVEST = SAMPLE_DATA / "harvest_2025.csv"
 HARVEST_2026 = SAMPLE_DATA / "harvest_2026.csv"
