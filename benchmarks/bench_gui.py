@@ -115,6 +115,7 @@ def main(n: int = 1_000_000) -> None:
         print(f"{name:<58} {med:8.1f} ms  (x{med / reference:5.2f} ref, worst {max(times):.1f})")
 
     methods = ["minmax", "zscore", "decimal", "robust", "maxabs", "log", "yeojohnson", "boxcox"]
+
     def landed() -> None:
         while s.fitting("yield_kg"):
             app.processEvents()
@@ -129,9 +130,10 @@ def main(n: int = 1_000_000) -> None:
         report(f"  {method:<11} first time", first)
         if background:
             landed()
-            report("      until the fit lands and the scaled bars are drawn", [
-                (time.perf_counter() - t0) * 1000
-            ])
+            report(
+                "      until the fit lands and the scaled bars are drawn",
+                [(time.perf_counter() - t0) * 1000],
+            )
     again = []
     for _ in range(3):
         for method in methods:

@@ -12,6 +12,20 @@ def test_ruff_finds_nothing():
     cmd = [ruff] if ruff else [sys.executable, "-m", "ruff"]
     result = subprocess.run(
         [*cmd, "check", "src", "tests", "benchmarks", "sample_data"],
-        cwd=REPO_ROOT, capture_output=True, text=True,
+        cwd=REPO_ROOT,
+        capture_output=True,
+        text=True,
+    )
+    assert result.returncode == 0, result.stdout + result.stderr
+
+
+def test_ruff_format_leaves_everything_as_it_is():
+    ruff = shutil.which("ruff")
+    cmd = [ruff] if ruff else [sys.executable, "-m", "ruff"]
+    result = subprocess.run(
+        [*cmd, "format", "--check", "src", "tests", "benchmarks", "sample_data"],
+        cwd=REPO_ROOT,
+        capture_output=True,
+        text=True,
     )
     assert result.returncode == 0, result.stdout + result.stderr

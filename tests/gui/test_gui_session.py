@@ -292,8 +292,10 @@ def test_group_values_differing_only_in_spaces_are_one_group(stack, tmp_path):
     from scalewright.engine import apply
 
     data = pd.DataFrame(
-        {"g": pd.array(["A", " A", "B", "B", "A", " A"], dtype="str"),
-         "x": [1.0, 2.0, 10.0, 30.0, 3.0, 4.0]}
+        {
+            "g": pd.array(["A", " A", "B", "B", "A", " A"], dtype="str"),
+            "x": [1.0, 2.0, 10.0, 30.0, 3.0, 4.0],
+        }
     )
     kinds = {"g": swio.ColumnKind.TEXT, "x": swio.ColumnKind.NUMBER}
     s = Session()

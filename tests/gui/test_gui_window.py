@@ -372,10 +372,7 @@ def test_cancelling_a_long_export_leaves_no_file(qtbot, window, big_table, tmp_p
     assert w.session.choice("yield_kg").method == "boxcox"  # nothing lost
 
 
-
-def test_a_slow_fit_of_a_large_column_lands_without_holding_up_the_window(
-    qtbot, window, big_table
-):
+def test_a_slow_fit_of_a_large_column_lands_without_holding_up_the_window(qtbot, window, big_table):
     w = window
     s = w.session
     s.load_table(big_table)  # 300,000 rows: Box-Cox is fitted in the background
@@ -708,8 +705,9 @@ def test_opening_a_project_shows_its_table_once_with_the_loading_jobs_figures(
     for label in ("soil_ph", "fruit_count"):  # visiting columns later needs no pass either
         click_row(qtbot, w, label)
     assert not [c for c in on_screen_thread if c[1]], on_screen_thread
-    assert "split" in [w.method_panel.where_column.itemData(i)
-                       for i in range(w.method_panel.where_column.count())]
+    assert "split" in [
+        w.method_panel.where_column.itemData(i) for i in range(w.method_panel.where_column.count())
+    ]
 
 
 def test_opening_a_project_looks_for_its_data_file_in_the_loading_job(
@@ -817,8 +815,9 @@ def test_writing_waits_for_fits_still_running(qtbot, window, big_table, tmp_path
     assert w.save_project(tmp_path / "p.swproj", wait=True)
 
 
-def test_export_uses_the_file_type_chosen_in_the_dialog(qtbot, opened, tmp_path, wait_job,
-                                                       monkeypatch):
+def test_export_uses_the_file_type_chosen_in_the_dialog(
+    qtbot, opened, tmp_path, wait_job, monkeypatch
+):
     from scalewright.gui import main_window
 
     w = opened

@@ -80,7 +80,11 @@ def test_check_target_messages(fitted):
         (folder / "x.json", {}, "cannot write '.json' files"),
         (folder, {}, "cannot write 'no extension' files"),
         (folder / "harvest_2025.csv", {"source": table.source}, "the file the data was read"),
-        (folder / "harvest_2025.csv", {"project": project}, "the data file the parameters were fitted on"),
+        (
+            folder / "harvest_2025.csv",
+            {"project": project},
+            "the data file the parameters were fitted on",
+        ),
         (folder / "p.swproj", {"project": project}, "this name is for project files"),
     ]
     for target, kwargs, message in cases:

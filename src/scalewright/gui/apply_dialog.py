@@ -155,8 +155,9 @@ class ApplyDialog(WritingDialog):
         plan = self._project.plan
 
         def read(progress, cancelled):
-            table = swio.read_table(path, swio.ReadOptions(sheet=sheet),
-                                    progress=progress, cancelled=cancelled)
+            table = swio.read_table(
+                path, swio.ReadOptions(sheet=sheet), progress=progress, cancelled=cancelled
+            )
             return table, preview_apply(table, plan)
 
         return read
@@ -175,8 +176,10 @@ class ApplyDialog(WritingDialog):
         self.table.setRowCount(0)
         self.summary_label.setStyleSheet("")
         if plan is None or not plan.columns:
-            self.summary_label.setText("This project has no fitted columns yet, so there is "
-                                       "nothing to apply. Fit it in the main window first.")
+            self.summary_label.setText(
+                "This project has no fitted columns yet, so there is "
+                "nothing to apply. Fit it in the main window first."
+            )
             return
         if self._table is None:
             if not self.runner.busy:
@@ -198,15 +201,14 @@ class ApplyDialog(WritingDialog):
                     ("⚠ not in this file", "The file has no column with this name.")
                 ]
             elif column in self._problems:
-                cells += [("", "")] * 4 + [
-                    (f"⚠ {self._problems[column]}", self._problems[column])
-                ]
+                cells += [("", "")] * 4 + [(f"⚠ {self._problems[column]}", self._problems[column])]
             else:
                 rep = self._preview_reports[column]
                 outside_total += rep.n_outside
                 range_tip = (
                     f"Fitted range: {fc.pooled.min:.10g} to {fc.pooled.max:.10g}"
-                    if not fc.groups else "Each group has its own fitted range."
+                    if not fc.groups
+                    else "Each group has its own fitted range."
                 )
                 if rep.n_outside == 0:
                     fate = "none outside"
@@ -216,21 +218,31 @@ class ApplyDialog(WritingDialog):
                     fate = "scaled as they are"
                 notes = []
                 if rep.unseen_groups:
-                    notes.append("groups not seen when fitting: " + ", ".join(rep.unseen_groups)
-                                 + " (scaled with the parameters fitted on all groups)")
+                    notes.append(
+                        "groups not seen when fitting: "
+                        + ", ".join(rep.unseen_groups)
+                        + " (scaled with the parameters fitted on all groups)"
+                    )
                 if rep.n_infinite:
                     notes.append(f"{rep.n_infinite:,} infinite values pass unchanged")
                 if rep.n_undefined:
-                    notes.append(f"{rep.n_undefined:,} values have no scaled value and will be "
-                                 "left blank")
+                    notes.append(
+                        f"{rep.n_undefined:,} values have no scaled value and will be left blank"
+                    )
                 note = "; ".join(notes)
                 cells += [
                     (f"{rep.n_values:,}", "Values in the new file (blanks not counted)."),
                     (f"{rep.n_below:,}", range_tip),
                     (f"{rep.n_above:,}", range_tip),
-                    (fate, "Values outside the fitted range "
-                     + ("are moved to its nearest end before scaling." if clip else
-                        "are scaled as they are (tick Clip to move them into the range).")),
+                    (
+                        fate,
+                        "Values outside the fitted range "
+                        + (
+                            "are moved to its nearest end before scaling."
+                            if clip
+                            else "are scaled as they are (tick Clip to move them into the range)."
+                        ),
+                    ),
                     (("⚠ " + note) if note else "", note or "Nothing to note."),
                 ]
             for c, (text, tip) in enumerate(cells):
@@ -246,16 +258,20 @@ class ApplyDialog(WritingDialog):
         n_rows = len(self._table.data)
         text = f"{plural(n_rows, 'row')} in {escape_html(self._table.source.name)}. "
         if self._missing:
-            text += ("<b>It has no column "
-                     + ", ".join(f"'{escape_html(c)}'" for c in self._missing)
-                     + "</b>, so it cannot be scaled with this project.")
+            text += (
+                "<b>It has no column "
+                + ", ".join(f"'{escape_html(c)}'" for c in self._missing)
+                + "</b>, so it cannot be scaled with this project."
+            )
         elif self._problems:
             text += "<b>Some columns cannot be scaled</b> (see the list)."
         elif outside_total:
             verb = "lies" if outside_total == 1 else "lie"
-            text += (f"{plural(outside_total, 'value')} {verb} outside the fitted range"
-                     + (" and will be clipped into it." if clip else
-                        "; they are scaled as they are unless you tick Clip."))
+            text += f"{plural(outside_total, 'value')} {verb} outside the fitted range" + (
+                " and will be clipped into it."
+                if clip
+                else "; they are scaled as they are unless you tick Clip."
+            )
         else:
             text += "Every value lies inside the fitted range."
         self.summary_label.setText(text)
@@ -265,8 +281,10 @@ class ApplyDialog(WritingDialog):
             return self._read_error
         if self._missing:
             names = ", ".join(f"'{c}'" for c in self._missing)
-            return (f"This file has no column {names}. Every column the project scales must "
-                    "be in the file, with the same name.")
+            return (
+                f"This file has no column {names}. Every column the project scales must "
+                "be in the file, with the same name."
+            )
         if self._problems:
             return " ".join(f"'{c}' {why}." for c, why in self._problems.items())
         return ""
@@ -308,8 +326,9 @@ class ApplyDialog(WritingDialog):
         project, table, clip = self._project, self._table, self.clip()
 
         def write(progress, cancelled):
-            return tasks.apply_table(project, table, target, clip=clip,
-                                     progress=progress, cancelled=cancelled)
+            return tasks.apply_table(
+                project, table, target, clip=clip, progress=progress, cancelled=cancelled
+            )
 
         return write
 

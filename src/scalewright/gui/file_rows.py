@@ -19,7 +19,11 @@ from .. import io as swio
 from ..io.options import WORKBOOK_SUFFIXES
 from . import theme
 
-_TYPE_NAMES = {".xlsx": "Excel workbook", ".csv": "Comma-separated text", ".tsv": "Tab-separated text"}
+_TYPE_NAMES = {
+    ".xlsx": "Excel workbook",
+    ".csv": "Comma-separated text",
+    ".tsv": "Tab-separated text",
+}
 
 
 def patterns(suffixes) -> str:

@@ -278,8 +278,7 @@ class HistogramPanel(QWidget):
         if s.fitting(label):
             # A slow fit of a large column is on its way; the bars follow when it lands.
             self.scaled_title.setText(
-                f"<b style='color:{theme.SCALED}'>\u25a0</b> Scaled with {method.name}: "
-                "fitting…"
+                f"<b style='color:{theme.SCALED}'>\u25a0</b> Scaled with {method.name}: fitting…"
             )
             self.scaled.figures.setText("")
         elif error:

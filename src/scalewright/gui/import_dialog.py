@@ -99,8 +99,9 @@ class ImportDialog(QDialog):
 
     optionsChanged = Signal(object)  # ReadOptions
 
-    def __init__(self, path: str | Path, parent: QWidget | None = None, *,
-                 options: ReadOptions | None = None) -> None:
+    def __init__(
+        self, path: str | Path, parent: QWidget | None = None, *, options: ReadOptions | None = None
+    ) -> None:
         super().__init__(parent)
         self._path = Path(path)
         self._fixed: dict[str, Any] = {
@@ -136,20 +137,24 @@ class ImportDialog(QDialog):
         intro.setToolTip(str(self._path))
 
         self.encoding_box = self._combo(
-            "encoding", ENCODINGS,
+            "encoding",
+            ENCODINGS,
             "How the characters of the file are stored. Change it if letters such as "
             "ä, é or ñ look garbled in the preview.",
         )
         self.delimiter_box = self._combo(
-            "delimiter", DELIMITER_WORDS,
+            "delimiter",
+            DELIMITER_WORDS,
             "The character between the columns of a row.",
         )
         self.decimal_box = self._combo(
-            "decimal", DECIMAL_WORDS,
+            "decimal",
+            DECIMAL_WORDS,
             "The mark between the whole part and the fraction of a number.",
         )
         self.thousands_box = self._combo(
-            "thousands", THOUSANDS_WORDS,
+            "thousands",
+            THOUSANDS_WORDS,
             "The mark that groups the digits of large numbers, if any.",
         )
         self.sheet_box = QComboBox()
@@ -191,8 +196,9 @@ class ImportDialog(QDialog):
         settings = QGroupBox("How the file is read")
         settings_layout = QVBoxLayout(settings)
         settings_layout.addLayout(form)
-        guessed = QLabel("Settings in <i>italics</i> were guessed; the ones you change stay "
-                         "as you set them.")
+        guessed = QLabel(
+            "Settings in <i>italics</i> were guessed; the ones you change stay as you set them."
+        )
         guessed.setWordWrap(True)
         guessed.setProperty("role", "hint")
         guessed.setStyleSheet(MUTED_STYLE)
@@ -352,8 +358,14 @@ class ImportDialog(QDialog):
 
     def _show_controls(self, detection) -> None:
         opts = detection.options
-        widgets = (self.encoding_box, self.delimiter_box, self.decimal_box, self.thousands_box,
-                   self.sheet_box, self.header_spin)
+        widgets = (
+            self.encoding_box,
+            self.delimiter_box,
+            self.decimal_box,
+            self.thousands_box,
+            self.sheet_box,
+            self.header_spin,
+        )
         for w in widgets:
             w.blockSignals(True)
         try:
@@ -372,9 +384,14 @@ class ImportDialog(QDialog):
         finally:
             for w in widgets:
                 w.blockSignals(False)
-        for name, box in (("encoding", self.encoding_box), ("delimiter", self.delimiter_box),
-                          ("decimal", self.decimal_box), ("thousands", self.thousands_box),
-                          ("sheet", self.sheet_box), ("header_row", self.header_spin)):
+        for name, box in (
+            ("encoding", self.encoding_box),
+            ("delimiter", self.delimiter_box),
+            ("decimal", self.decimal_box),
+            ("thousands", self.thousands_box),
+            ("sheet", self.sheet_box),
+            ("header_row", self.header_spin),
+        ):
             font = box.font()
             font.setItalic(name not in self._fixed)
             box.setFont(font)

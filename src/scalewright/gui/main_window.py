@@ -607,9 +607,7 @@ class MainWindow(QMainWindow):
                 return False
             return self._show_project(path, project, check, table, facts)
 
-        return self.load_data(
-            project.source or path, project.read_options, find=find, show=show
-        )
+        return self.load_data(project.source or path, project.read_options, find=find, show=show)
 
     def _show_project(self, path: Path, project, check, table, facts) -> bool:
         source = Path(table.source)
@@ -631,16 +629,17 @@ class MainWindow(QMainWindow):
             return False
         # Parameters kept from a file that has changed since are recorded as fitted on
         # that file (its size and SHA-256, its number of rows), not on this one.
-        self._kept = (
-            (project, dict(project.plan.columns)) if keep and check.changed else None
-        )
+        self._kept = (project, dict(project.plan.columns)) if keep and check.changed else None
         self.add_recent(path)
         notes = []
         if check.changed:
             notes.append(
                 "the data file has changed since the project was saved; "
-                + ("the saved parameters were kept" if keep else
-                   "the parameters were fitted again on the current data")
+                + (
+                    "the saved parameters were kept"
+                    if keep
+                    else "the parameters were fitted again on the current data"
+                )
             )
         if missing:
             notes.append("not in the data any more: " + ", ".join(missing))
@@ -666,9 +665,7 @@ class MainWindow(QMainWindow):
         settings = self.session.settings
         plan = self.session.plan()  # cached fits; callers checked problems() first
         kept = self._kept
-        if kept is not None and any(
-            plan.columns.get(label) is fc for label, fc in kept[1].items()
-        ):
+        if kept is not None and any(plan.columns.get(label) is fc for label, fc in kept[1].items()):
             saved = kept[0]
             plan = dataclasses.replace(plan, n_rows=saved.plan.n_rows)
             fingerprint = (saved.source_size, saved.source_sha256)

@@ -334,7 +334,9 @@ class MethodPanel(QWidget):
             page, widgets = self._option_pages[method.id]
             # The box takes the height of the page shown, not of the tallest page built.
             for other, _w in self._option_pages.values():
-                policy = QSizePolicy.Policy.Preferred if other is page else QSizePolicy.Policy.Ignored
+                policy = (
+                    QSizePolicy.Policy.Preferred if other is page else QSizePolicy.Policy.Ignored
+                )
                 other.setSizePolicy(policy, policy)
             self.options_pages.setCurrentWidget(page)
             self._option_widgets = widgets

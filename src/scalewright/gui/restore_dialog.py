@@ -116,11 +116,16 @@ class RestoreDialog(WritingDialog):
         self.mapping_table.setEditTriggers(QAbstractItemView.EditTrigger.NoEditTriggers)
         self.mapping_table.setSelectionMode(QAbstractItemView.SelectionMode.NoSelection)
         self.mapping_table.verticalHeader().hide()
-        for i, (title, tip) in enumerate((
-            ("Column in the file", "A column of the chosen file."),
-            ("Restore with the parameters of", "The fitted column whose parameters restore it."),
-            ("Matched", "Whether the pair was found by name or chosen by you."),
-        )):
+        for i, (title, tip) in enumerate(
+            (
+                ("Column in the file", "A column of the chosen file."),
+                (
+                    "Restore with the parameters of",
+                    "The fitted column whose parameters restore it.",
+                ),
+                ("Matched", "Whether the pair was found by name or chosen by you."),
+            )
+        ):
             item = QTableWidgetItem(title)
             item.setToolTip(tip)
             self.mapping_table.setHorizontalHeaderItem(i, item)
@@ -130,8 +135,7 @@ class RestoreDialog(WritingDialog):
         header.setSectionResizeMode(1, QHeaderView.ResizeMode.Stretch)
         self.mapping_table.setHorizontalScrollBarPolicy(Qt.ScrollBarPolicy.ScrollBarAlwaysOff)
         self.mapping_hint = QLabel()
-        self.mapping_hint.setSizePolicy(QSizePolicy.Policy.Preferred,
-                                        QSizePolicy.Policy.Minimum)
+        self.mapping_hint.setSizePolicy(QSizePolicy.Policy.Preferred, QSizePolicy.Policy.Minimum)
         self.mapping_hint.setObjectName("mappingHint")
         self.mapping_hint.setWordWrap(True)
         self.reading_label = self.mapping_hint
@@ -149,8 +153,7 @@ class RestoreDialog(WritingDialog):
         self.preview_notes = QLabel()
         self.preview_notes.setObjectName("previewNotes")
         self.preview_notes.setWordWrap(True)
-        self.preview_notes.setSizePolicy(QSizePolicy.Policy.Preferred,
-                                         QSizePolicy.Policy.Minimum)
+        self.preview_notes.setSizePolicy(QSizePolicy.Policy.Preferred, QSizePolicy.Policy.Minimum)
         preview_box = QGroupBox("Preview: first rows before and after")
         preview_layout = QVBoxLayout(preview_box)
         preview_layout.addWidget(self.preview_view, 1)
@@ -166,9 +169,7 @@ class RestoreDialog(WritingDialog):
             "The file to write: .xlsx, .csv or .tsv. Columns that are not restored are "
             "written as they are. It can never be the file of scaled values itself.",
         )
-        self.output_row.edit.setPlaceholderText(
-            "Where to save, for example predicted_yield_kg.csv"
-        )
+        self.output_row.edit.setPlaceholderText("Where to save, for example predicted_yield_kg.csv")
         self.lay_out(intro, "Save restored file", project_box, data_box, (middle, 1), out_box)
 
     # ------------------------------------------------------------------ public API
@@ -234,16 +235,19 @@ class RestoreDialog(WritingDialog):
     def _show_project(self) -> None:
         set_message(self.project_error, self._project_error)
         if self._project is None:
-            self.project_label.setText("No project yet: choose a project file or a scaled "
-                                       "workbook.")
+            self.project_label.setText(
+                "No project yet: choose a project file or a scaled workbook."
+            )
             self.project_label.setStyleSheet(MUTED_STYLE)
             return
         self.project_label.setStyleSheet("")
         fitted = self._fitted()
         source = Path(self._project.source).name if self._project.source else "an unnamed file"
         if not fitted:
-            self.project_label.setText(f"The project for <b>{escape_html(source)}</b> has no fitted "
-                                       "columns yet, so there is nothing to restore with.")
+            self.project_label.setText(
+                f"The project for <b>{escape_html(source)}</b> has no fitted "
+                "columns yet, so there is nothing to restore with."
+            )
             return
         names = ", ".join(
             f"{escape_html(c)} ({engine.get_method(fc.method).name})" for c, fc in fitted.items()
@@ -263,8 +267,9 @@ class RestoreDialog(WritingDialog):
 
     def _reader(self, path: Path, sheet: str | None):
         def read(progress, cancelled):
-            return swio.read_table(path, swio.ReadOptions(sheet=sheet),
-                                   progress=progress, cancelled=cancelled)
+            return swio.read_table(
+                path, swio.ReadOptions(sheet=sheet), progress=progress, cancelled=cancelled
+            )
 
         return read
 
@@ -284,7 +289,8 @@ class RestoreDialog(WritingDialog):
         if self._table is None:
             self.mapping_hint.setText(
                 "Choose a file to pair its columns with the project's fitted columns."
-                if self._project is not None else "Choose a project first, then a file."
+                if self._project is not None
+                else "Choose a project first, then a file."
             )
             self.mapping_hint.setStyleSheet(MUTED_STYLE)
             self._refresh_preview()
@@ -302,19 +308,25 @@ class RestoreDialog(WritingDialog):
             self.mapping_table.setItem(r, 0, name)
             box = QComboBox()
             box.addItem(LEAVE, "")
-            box.setItemData(0, "Write this column as it is in the file.",
-                            Qt.ItemDataRole.ToolTipRole)
+            box.setItemData(
+                0, "Write this column as it is in the file.", Qt.ItemDataRole.ToolTipRole
+            )
             for f, fc in fitted.items():
                 box.addItem(f"{f}  ({engine.get_method(fc.method).name})", f)
                 box.setItemData(box.count() - 1, _params_tip(fc), Qt.ItemDataRole.ToolTipRole)
             why = tasks.not_numbers(self._table, column)
             if why or not fitted:
                 box.setEnabled(False)
-                box.setToolTip(f"'{column}' {why}, so it is written as it is." if why else
-                               "The project has no fitted columns.")
+                box.setToolTip(
+                    f"'{column}' {why}, so it is written as it is."
+                    if why
+                    else "The project has no fitted columns."
+                )
             else:
-                box.setToolTip(f"Which fitted column's parameters bring '{column}' back to "
-                               "original units; 'leave as is' writes it unchanged.")
+                box.setToolTip(
+                    f"Which fitted column's parameters bring '{column}' back to "
+                    "original units; 'leave as is' writes it unchanged."
+                )
                 if column in self._auto:
                     box.setCurrentIndex(box.findData(self._auto[column]))
             box.currentIndexChanged.connect(lambda _i, c=column: self._mapping_changed(c))
@@ -336,8 +348,15 @@ class RestoreDialog(WritingDialog):
         chosen = self._combos[column].currentData() or ""
         auto = self._auto.get(column, "")
         if not chosen:
-            text, tip = "", ("A column of the same name was fitted, but you chose to leave "
-                             "this one as it is." if auto else "Written as it is.")
+            text, tip = (
+                "",
+                (
+                    "A column of the same name was fitted, but you chose to leave "
+                    "this one as it is."
+                    if auto
+                    else "Written as it is."
+                ),
+            )
         elif chosen == auto:
             text, tip = "by name", "Paired automatically: the names match."
         else:
@@ -349,8 +368,9 @@ class RestoreDialog(WritingDialog):
     def _show_hint(self) -> None:
         n = len(self.mapping())
         if not self._fitted():
-            self.mapping_hint.setText("The project has no fitted columns, so nothing can be "
-                                      "restored with it.")
+            self.mapping_hint.setText(
+                "The project has no fitted columns, so nothing can be restored with it."
+            )
             self.mapping_hint.setStyleSheet(f"color: {theme.WARNING};")
         elif n:
             self.mapping_hint.setText(
@@ -382,9 +402,7 @@ class RestoreDialog(WritingDialog):
                 parts = {}
                 for column, fitted in mapping.items():
                     parts[f"{column} (as in the file)"] = head[column].reset_index(drop=True)
-                    parts[f"{column} (in {fitted} units)"] = (
-                        restored[column].reset_index(drop=True)
-                    )
+                    parts[f"{column} (in {fitted} units)"] = restored[column].reset_index(drop=True)
                 frame = pd.DataFrame(parts)
                 notes += [f"{r.column}: {w}" for r in reports for w in r.warnings]
         self._preview_frame = frame
@@ -456,19 +474,29 @@ class RestoreDialog(WritingDialog):
         project, table, mapping = self._project, self._table, self.mapping()
 
         def write(progress, cancelled):
-            return tasks.restore_table(project, table, target, mapping=mapping, exact=True,
-                                       progress=progress, cancelled=cancelled)
+            return tasks.restore_table(
+                project,
+                table,
+                target,
+                mapping=mapping,
+                exact=True,
+                progress=progress,
+                cancelled=cancelled,
+            )
 
         return write
 
     def _write_done(self, reports) -> None:
         n = sum(r.n_values for r in reports)
-        text = (f"✓  Saved {self._written.name}: {plural(len(reports), 'column')} restored "
-                f"to original units ({plural(n, 'value')}).")
+        text = (
+            f"✓  Saved {self._written.name}: {plural(len(reports), 'column')} restored "
+            f"to original units ({plural(n, 'value')})."
+        )
         undefined = sum(r.n_undefined for r in reports)
         if undefined:
-            text += f" {plural(undefined, 'value')} had no value in original units and were " \
-                    "left blank."
+            text += (
+                f" {plural(undefined, 'value')} had no value in original units and were left blank."
+            )
         self.show_written(text, tasks.describe_reports(reports, restoring=True))
 
 

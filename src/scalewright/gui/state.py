@@ -389,7 +389,8 @@ class Session:
         for label, fc in (fitted or {}).items():
             choice = self._choices.get(label)
             if choice is not None and (fc.method, dict(fc.options)) == (
-                choice.method, dict(choice.options)
+                choice.method,
+                dict(choice.options),
             ):
                 self._fits.setdefault(label, {})[_choice_key(choice)] = fc
         for label in labels:

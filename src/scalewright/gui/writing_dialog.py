@@ -148,9 +148,7 @@ class WritingDialog(QDialog):
         )
         heading.setWordWrap(True)
         self.buttons = QDialogButtonBox()
-        self.save_button = self.buttons.addButton(
-            save_text, QDialogButtonBox.ButtonRole.ActionRole
-        )
+        self.save_button = self.buttons.addButton(save_text, QDialogButtonBox.ButtonRole.ActionRole)
         self.save_button.setObjectName("save")
         self.save_button.setDefault(True)
         self.close_button = self.buttons.addButton(QDialogButtonBox.StandardButton.Close)
@@ -238,8 +236,13 @@ class WritingDialog(QDialog):
             return
         if self.reading_label is not None:
             self.reading_label.setText(f"Reading {escape_html(path.name)}…")
-        self.run_job(f"Reading {path.name}…", self._reader(path, sheet), self._data_read,
-                     self._data_failed, self._data_stopped)
+        self.run_job(
+            f"Reading {path.name}…",
+            self._reader(path, sheet),
+            self._data_read,
+            self._data_failed,
+            self._data_stopped,
+        )
 
     def _reload(self) -> None:
         self._reload_queued = False
@@ -277,8 +280,9 @@ class WritingDialog(QDialog):
     # ------------------------------------------------------------------ writing
 
     def run_job(self, title: str, func, on_done, on_error=None, on_cancel=None):
-        return self.runner.run(title, func, on_done, on_error or self._job_failed,
-                               on_cancel or (lambda: None))
+        return self.runner.run(
+            title, func, on_done, on_error or self._job_failed, on_cancel or (lambda: None)
+        )
 
     def save(self) -> None:
         """Write the output in the background (does nothing unless Save is enabled)."""
@@ -288,8 +292,9 @@ class WritingDialog(QDialog):
         target = self.output_row.path()
         self.start_write(f"Writing {target.name}…", self._writer(target), target)
 
-    def start_write(self, title: str, func: Callable[[Callable, Callable], Any],
-                    target: Path) -> None:
+    def start_write(
+        self, title: str, func: Callable[[Callable, Callable], Any], target: Path
+    ) -> None:
         self.result_label.hide()
         finished: dict[str, Any] = {}
 
@@ -310,8 +315,11 @@ class WritingDialog(QDialog):
                 self.show_result("Stopped. No file was written.", MUTED_STYLE)
 
         def failed(err: BaseException) -> None:
-            self.show_result(f"⚠  Nothing was written. {plain_message(err)}", ERROR_STYLE,
-                             details="" if isinstance(err, ScalewrightError) else details_of(err))
+            self.show_result(
+                f"⚠  Nothing was written. {plain_message(err)}",
+                ERROR_STYLE,
+                details="" if isinstance(err, ScalewrightError) else details_of(err),
+            )
 
         self.run_job(title, job, done, failed, stopped)
 
@@ -322,8 +330,11 @@ class WritingDialog(QDialog):
         self.close_button.setToolTip("Close this window; the file has been saved.")
 
     def _job_failed(self, err: BaseException) -> None:
-        self.show_result(f"⚠  {plain_message(err)}", ERROR_STYLE,
-                         details="" if isinstance(err, ScalewrightError) else details_of(err))
+        self.show_result(
+            f"⚠  {plain_message(err)}",
+            ERROR_STYLE,
+            details="" if isinstance(err, ScalewrightError) else details_of(err),
+        )
 
     def show_result(self, text: str, style: str, *, details: str = "") -> None:
         self.result_label.setText(text)
