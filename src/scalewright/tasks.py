@@ -53,13 +53,48 @@ from .project import (
 Progress = Callable[[float], None]
 CancelCheck = Callable[[], bool]
 
-_NOT_SCALED = {
-    ColumnKind.IDENTIFIER: "is an identifier column; identifiers are never scaled",
-    ColumnKind.DATE: "is a date column; dates are never scaled",
-    ColumnKind.BOOLEAN: "is a yes/no column, not numbers, so it cannot be scaled",
-    ColumnKind.TEXT: "is a text column, not numbers, so it cannot be scaled",
-    ColumnKind.EMPTY: "is empty, so there is nothing to scale",
+
+@dataclasses.dataclass(frozen=True)
+class KindWords:
+    """The plain words a user reads for a kind of column, in the window and the command line."""
+
+    word: str  # the short word in lists ("yes/no")
+    about: str  # one sentence on what the kind holds and what becomes of it
+    not_scaled: str  # why it is not scaled, read after "is" ("" when it can be scaled)
+
+
+KIND_WORDS: dict[ColumnKind, KindWords] = {
+    ColumnKind.NUMBER: KindWords("number", "Numbers: this column can be scaled.", ""),
+    ColumnKind.IDENTIFIER: KindWords(
+        "identifier",
+        "Codes or identifiers (for example with leading zeros): kept as text, never scaled.",
+        "an identifier column; identifiers are never scaled",
+    ),
+    ColumnKind.DATE: KindWords(
+        "date",
+        "Dates or times: kept as they are, never scaled.",
+        "a date column; dates are never scaled",
+    ),
+    ColumnKind.BOOLEAN: KindWords(
+        "yes/no",
+        "True/false values: kept as they are, never scaled.",
+        "a yes/no column, not numbers, so it cannot be scaled",
+    ),
+    ColumnKind.TEXT: KindWords(
+        "text",
+        "Text or categories: kept as they are, never scaled.",
+        "a text column, not numbers, so it cannot be scaled",
+    ),
+    ColumnKind.EMPTY: KindWords(
+        "empty", "No values at all in this column.", "empty, so there is nothing to scale"
+    ),
 }
+
+
+def why_not_scaled(kind: ColumnKind | str) -> str:
+    """Why a column of this kind is not scaled, to read after "is" ("" for numbers)."""
+    words = KIND_WORDS.get(kind)  # a kind or its plain value
+    return words.not_scaled if words else "not a column of numbers, so it cannot be scaled"
 
 
 def _part(progress: Progress | None, start: float, end: float) -> Progress | None:
@@ -81,7 +116,7 @@ def check_choices(table: Table, choices: Mapping[str, ColumnChoice]) -> None:
             continue
         kind = table.kinds.get(label)
         if kind is not None and kind != ColumnKind.NUMBER:
-            raise ColumnError(label, _NOT_SCALED.get(kind, "is not a numeric column"))
+            raise ColumnError(label, "is " + why_not_scaled(kind))
 
 
 def fit_project(
@@ -348,12 +383,10 @@ def not_numbers(table: Table, label: str) -> str:
     kind = table.kinds.get(label)
     if kind is not None and kind not in (ColumnKind.NUMBER, ColumnKind.EMPTY):
         return (
-            f"holds {_KIND_WORDS.get(kind, str(kind))} values in {table.source.name}, not numbers"
+            f"holds {KIND_WORDS[kind].word if kind in KIND_WORDS else kind} values in "
+            f"{table.source.name}, not numbers"
         )
     return ""
-
-
-_KIND_WORDS = {ColumnKind.BOOLEAN: "yes/no"}
 
 
 def _check_fitted_columns_numeric(table: Table, columns: Sequence[str]) -> None:
@@ -518,25 +551,28 @@ def _count(n: int, word: str) -> str:
 _COUNTED = ("fitted range", "infinite values were passed", "left blank")
 
 
+def describe_report(r: ColumnReport, *, restoring: bool = False) -> list[str]:
+    """How both faces show one column's report: a line of counts (values, out-of-range,
+    clipping, blanks, infinities), then one ``  note:`` line per warning not counted."""
+    name = r.column if r.column == r.fitted_as else f"{r.column} (as {r.fitted_as})"
+    parts = [_count(r.n_values, "value") + (" restored" if restoring else "")]
+    if not restoring:
+        if r.n_outside:
+            parts.append(
+                f"{r.n_below:,} below and {r.n_above:,} above the fitted range"
+                + (", clipped into it" if r.n_clipped else "")
+            )
+        else:
+            parts.append("none outside the fitted range")
+    if r.n_undefined:
+        units = "original" if restoring else "scaled"
+        parts.append(f"{r.n_undefined:,} left blank (no value in {units} units)")
+    if r.n_infinite:
+        parts.append(f"{_count(r.n_infinite, 'infinite value')} passed through")
+    notes = [f"  note: {w}" for w in r.warnings if not any(c in w for c in _COUNTED)]
+    return [f"{name}: " + "; ".join(parts), *notes]
+
+
 def describe_reports(reports: Sequence[ColumnReport], *, restoring: bool = False) -> list[str]:
-    """One plain line per column (values, out-of-range counts, clipping) plus its notes."""
-    lines = []
-    for r in reports:
-        name = r.column if r.column == r.fitted_as else f"{r.column} (as {r.fitted_as})"
-        parts = [_count(r.n_values, "value") + (" restored" if restoring else "")]
-        if not restoring:
-            if r.n_outside:
-                parts.append(
-                    f"{r.n_below:,} below and {r.n_above:,} above the fitted range"
-                    + (", clipped into it" if r.n_clipped else "")
-                )
-            else:
-                parts.append("none outside the fitted range")
-        if r.n_undefined:
-            units = "original" if restoring else "scaled"
-            parts.append(f"{r.n_undefined:,} left blank (no value in {units} units)")
-        if r.n_infinite:
-            parts.append(f"{_count(r.n_infinite, 'infinite value')} passed through")
-        lines.append(f"{name}: " + "; ".join(parts))
-        lines += [f"  note: {w}" for w in r.warnings if not any(c in w for c in _COUNTED)]
-    return lines
+    """:func:`describe_report` for every column, one after the other."""
+    return [line for r in reports for line in describe_report(r, restoring=restoring)]

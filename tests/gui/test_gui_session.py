@@ -15,7 +15,7 @@ from scalewright.engine import (
     histogram,
     mapped_edges,
 )
-from scalewright.errors import OptionError, ScalewrightError
+from scalewright.errors import ColumnError, OptionError, ScalewrightError
 from scalewright.gui import commands
 from scalewright.gui.state import Session
 
@@ -44,6 +44,15 @@ def test_kinds_and_what_can_be_scaled(session):
     assert "tree_code" not in session.numeric_labels
     # the first scalable column is selected on load
     assert session.selection == ["tree_age_years"]
+
+
+def test_the_window_and_the_command_line_give_one_reason_per_kind(session):
+    from scalewright import tasks
+
+    for label in ("tree_code", "planted_on", "orchard"):  # identifier, date, text
+        with pytest.raises(ColumnError) as err:
+            tasks.check_choices(session.table, {label: ColumnChoice("zscore")})
+        assert str(err.value) == f"column '{label}': is {session.why_not_scalable(label)}"
 
 
 def test_identifier_cannot_be_given_a_method(session, stack):

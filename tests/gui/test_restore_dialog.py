@@ -274,6 +274,25 @@ def test_text_columns_cannot_be_paired(qtbot, make_dialog, project, tmp_path):
     assert not dialog.can_save()
 
 
+def test_the_preview_says_each_count_once_as_the_saved_report_does(
+    qtbot, make_dialog, project, tmp_path
+):
+    # The engine repeats its counts among a report's warnings; the dialog shows a column's
+    # report the way the command line does, so a count appears once (regression test).
+    path = tmp_path / "predictions.csv"
+    path.write_text("tree_code,yield_kg\n000076,inf\n000081,0.5\n000082,-inf\n")
+    dialog = make_dialog(project)
+    pick_data(qtbot, dialog, path)
+    assert dialog.mapping() == {"yield_kg": "yield_kg"}
+
+    notes = dialog.preview_notes.text()
+    assert notes.count("infinite value") == 1, notes
+    assert "yield_kg: 3 values restored; 2 infinite values passed through" in notes
+    pick_output(qtbot, dialog, tmp_path / "restored.csv")
+    save_and_wait(qtbot, dialog)
+    assert dialog.result_label.toolTip().count("infinite value") == 1
+
+
 def test_the_file_of_scaled_values_can_never_be_the_output(qtbot, make_dialog, project, tmp_path):
     data = tmp_path / "predictions.csv"
     data.write_bytes(PREDICTIONS.read_bytes())

@@ -12,21 +12,29 @@ from PySide6.QtCore import QAbstractTableModel, QModelIndex, Qt
 from PySide6.QtWidgets import QAbstractItemView, QHeaderView, QTableView
 
 
-def format_cell(value: Any) -> str:
-    """A cell as the user should see it: blanks empty, numbers without float noise."""
+def format_cell(value: Any, *, digits: int = 10) -> str:
+    """A cell as the user should see it, in every table of the window: blanks empty,
+    infinities as the files write them (``inf``, ``-inf``), whole numbers in full and other
+    numbers to ``digits`` significant digits, without float noise."""
     if value is None or value is pd.NA or value is pd.NaT:
         return ""
+    if isinstance(value, (bool, np.bool_)):
+        return "true" if value else "false"
     if isinstance(value, (float, np.floating)):
         v = float(value)
         if math.isnan(v):
             return ""
         if math.isinf(v):
-            return "infinite" if v > 0 else "-infinite"
-        return f"{v:.10g}"
-    if isinstance(value, (bool, np.bool_)):
-        return "true" if value else "false"
+            return "inf" if v > 0 else "-inf"
+        if v.is_integer() and abs(v) < 1e15:
+            return str(int(v))
+        return f"{v:.{digits}g}"
+    if isinstance(value, np.datetime64):
+        if np.isnat(value):
+            return ""
+        value = pd.Timestamp(value)
     if isinstance(value, pd.Timestamp):
-        if value.hour == value.minute == value.second == value.microsecond == 0:
+        if value == value.normalize():
             return value.strftime("%Y-%m-%d")
         return value.isoformat(sep=" ")
     if isinstance(value, (dt.date, dt.datetime)):

@@ -8,49 +8,24 @@ interface thread.
 
 from __future__ import annotations
 
-import math
 from collections import OrderedDict
 
 import numpy as np
-import pandas as pd
 from PySide6.QtCore import QAbstractTableModel, QModelIndex, Qt
 from PySide6.QtGui import QBrush, QColor, QFont
 from PySide6.QtWidgets import QComboBox, QHBoxLayout, QLabel, QTableView, QVBoxLayout, QWidget
 
 from . import theme
+from .frame_view import format_cell
 from .state import Session
 
 BLOCK = 2048
 MAX_BLOCKS = 256  # cached scaled blocks (about 4 MB at most)
 
 
-def format_value(v) -> str:
-    if v is None or v is pd.NA or v is pd.NaT:
-        return ""
-    if isinstance(v, (float, np.floating)):
-        f = float(v)
-        if math.isnan(f):
-            return ""
-        if math.isinf(f):
-            return "inf" if f > 0 else "-inf"
-        if f.is_integer() and abs(f) < 1e15:
-            return str(int(f))
-        return f"{f:.10g}"
-    if isinstance(v, np.datetime64):
-        if np.isnat(v):
-            return ""
-        v = pd.Timestamp(v)
-    if isinstance(v, pd.Timestamp):
-        return v.strftime("%Y-%m-%d") if v == v.normalize() else v.isoformat(sep=" ")
-    return str(v)
-
-
 def format_scaled(v: float) -> str:
-    if math.isnan(v):
-        return ""
-    if math.isinf(v):
-        return "inf" if v > 0 else "-inf"
-    return f"{v:.6g}"
+    """A scaled value: as any other cell, to six significant digits."""
+    return format_cell(v, digits=6)
 
 
 class PreviewModel(QAbstractTableModel):
@@ -134,7 +109,7 @@ class PreviewModel(QAbstractTableModel):
                 if self.session.fit_error(label):
                     return ""
                 return format_scaled(float(self.scaled_block(label, row // BLOCK)[row % BLOCK]))
-            return format_value(self._columns[col][row])
+            return format_cell(self._columns[col][row])
         if role == Qt.ItemDataRole.TextAlignmentRole:
             if self._numeric[col]:
                 return int(Qt.AlignmentFlag.AlignRight | Qt.AlignmentFlag.AlignVCenter)

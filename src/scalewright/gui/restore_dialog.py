@@ -404,7 +404,13 @@ class RestoreDialog(WritingDialog):
                     parts[f"{column} (as in the file)"] = head[column].reset_index(drop=True)
                     parts[f"{column} (in {fitted} units)"] = restored[column].reset_index(drop=True)
                 frame = pd.DataFrame(parts)
-                notes += [f"{r.column}: {w}" for r in reports for w in r.warnings]
+                # Columns with something to say, in the words of the saved report.
+                notes += [
+                    line.strip()
+                    for r in reports
+                    if r.warnings
+                    for line in tasks.describe_report(r, restoring=True)
+                ]
         self._preview_frame = frame
         self._preview_notes = notes
         tips, texts = {}, {}
@@ -417,7 +423,7 @@ class RestoreDialog(WritingDialog):
         self.preview_model.set_frame(frame, header_tips=tips, header_texts=texts)
         self.preview_view.resizeColumnsToContents()
         if notes:
-            self.preview_notes.setText("⚠  " + " ".join(notes))
+            self.preview_notes.setText("⚠  " + "\n".join(notes))
             self.preview_notes.setStyleSheet(f"color: {theme.WARNING};")
         elif frame.empty:
             self.preview_notes.setText("The preview appears once a column is paired.")

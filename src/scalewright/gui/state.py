@@ -57,6 +57,7 @@ from ..engine import (
     value_key,
 )
 from ..errors import ScalewrightError
+from ..tasks import why_not_scaled
 
 BINS = 30
 
@@ -74,15 +75,6 @@ AFFINE_METHODS = frozenset({"none", "minmax", "zscore", "decimal", "robust", "ma
 
 # Kinds of columns whose values can say which rows to fit on ("Fit on rows where").
 FIT_WHERE_KINDS = ("text", "boolean", "number")
-
-# Kinds that can be scaled; everything else is listed but greyed out.
-_WHY_NOT = {
-    "identifier": "an identifier (a code such as a tree number): codes are kept exactly as they are",
-    "date": "dates are kept as they are and are not scaled",
-    "boolean": "yes/no values are kept as they are and are not scaled",
-    "text": "text, not numbers, so it cannot be scaled",
-    "empty": "every cell is blank, so there is nothing to scale",
-}
 
 
 @dataclass(frozen=True)
@@ -337,7 +329,7 @@ class Session:
             if label == self._settings.group_by:
                 return "the grouping column, so it cannot be scaled too"
             return None
-        return _WHY_NOT.get(kind, "not a column of numbers, so it cannot be scaled")
+        return why_not_scaled(kind)
 
     def scalable(self, label: str) -> bool:
         return self.why_not_scalable(label) is None

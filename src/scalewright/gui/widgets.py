@@ -11,6 +11,7 @@ from typing import Any
 from PySide6.QtCore import Qt
 from PySide6.QtWidgets import QLabel, QSizePolicy
 
+from ..tasks import KIND_WORDS
 from . import theme
 
 ERROR_STYLE = f"color: {theme.WARNING}; font-weight: 600;"
@@ -18,23 +19,12 @@ MUTED_STYLE = f"color: {theme.MUTED_TEXT};"
 # A darker shade of the theme's bluish green, so the text reads well on the light window.
 OK_STYLE = "color: #00795a; font-weight: 600;"
 
-KIND_WORDS = {
-    "number": ("number", "Numbers: this column can be scaled."),
-    "identifier": (
-        "identifier",
-        "Codes or identifiers (for example with leading zeros): kept as text, never scaled.",
-    ),
-    "date": ("date", "Dates or times: kept as they are, never scaled."),
-    "boolean": ("yes/no", "True/false values: kept as they are, never scaled."),
-    "text": ("text", "Text or categories: kept as they are, never scaled."),
-    "empty": ("empty", "No values at all in this column."),
-}
-
 
 def kind_word(kind: Any) -> tuple[str, str]:
     """(short word, one-sentence explanation) for a column kind."""
     key = str(getattr(kind, "value", kind))
-    return KIND_WORDS.get(key, (key, ""))
+    words = KIND_WORDS.get(key)  # a kind or its plain value
+    return (words.word, words.about) if words else (key, "")
 
 
 def message_label(style: str = ERROR_STYLE, role: str = "warning") -> QLabel:
