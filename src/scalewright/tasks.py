@@ -186,13 +186,6 @@ def _fitted(project: Project):
     return project.plan
 
 
-def scaled_data(
-    table: Table, project: Project, *, clip: bool = False
-) -> tuple[pd.DataFrame, list[ColumnReport]]:
-    """The table's data with every fitted column scaled; other columns untouched."""
-    return apply(table.data, _fitted(project), clip=clip)
-
-
 # --------------------------------------------------------------------------- writing
 
 
@@ -296,18 +289,11 @@ def export_scaled(
     progress: Progress | None = None,
     cancelled: CancelCheck | None = None,
 ) -> list[ColumnReport]:
-    """Scale ``table`` with the project's parameters and write it to ``target``."""
-    data, reports = scaled_data(table, project, clip=clip)
-    write_output(
-        target,
-        data,
-        table.headers,
-        project,
-        source=table.source,
-        progress=progress,
-        cancelled=cancelled,
-    )
-    return reports
+    """Scale ``table`` with the project's parameters and write it to ``target``.
+
+    The same job as :func:`apply_table`, named for the table the project was fitted on.
+    """
+    return apply_table(project, table, target, clip=clip, progress=progress, cancelled=cancelled)
 
 
 def _read(

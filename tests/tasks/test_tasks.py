@@ -24,7 +24,6 @@ from scalewright.tasks import (
     fit_project,
     load_project_or_workbook,
     restore_file,
-    scaled_data,
     write_output,
 )
 from support import SAMPLE_DATA
@@ -239,11 +238,12 @@ def test_fit_leaves_identifiers_alone_with_none(harvest):
     assert project.source_size == HARVEST.stat().st_size
 
 
-def test_scaled_data_needs_a_fitted_project(harvest):
+def test_export_needs_a_fitted_project(harvest, tmp_path):
     project = fit_project(harvest, {"yield_kg": ColumnChoice("zscore")})
     project.plan = None
     with pytest.raises(ProjectError, match="has no fitted parameters yet"):
-        scaled_data(harvest, project)
+        export_scaled(harvest, project, tmp_path / "out.csv")
+    assert not (tmp_path / "out.csv").exists()
 
 
 # --------------------------------------------------------------------------- apply
