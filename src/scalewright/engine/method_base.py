@@ -53,7 +53,7 @@ class OptionSpec:
 class ParamSpec:
     """One fitted parameter: stored name, JSON type, plain words, and when it is present.
 
-    ``kind`` is "number", "int", "text" or "bool". ``label`` is what a person reads
+    ``kind`` is "number", "numbers" (a list), "int", "text" or "bool". ``label`` is what a person reads
     ("first quartile"); ``says`` turns a value into a whole phrase where a label and a
     number would read badly (``ddof`` 1 -> "sample sd (divides by n - 1)").
     ``present`` decides from the other parameters whether this one is stored (the power

@@ -66,6 +66,8 @@ def _plain(value: Any, where: str) -> Any:
     """A parameter or option value as a JSON-ready Python value (numbers kept exact)."""
     if isinstance(value, bool) or value is None or isinstance(value, str):
         return value
+    if isinstance(value, list | tuple) or getattr(value, "ndim", 0) == 1:
+        return [_plain(v, f"{where}[{i}]") for i, v in enumerate(value)]
     if hasattr(value, "dtype") and getattr(value.dtype, "kind", "") == "b":
         return bool(value)
     if isinstance(value, int) or (hasattr(value, "dtype") and value.dtype.kind in "iu"):
