@@ -5,8 +5,9 @@ precision. Forward interpolates linearly between them to a uniform 0..1 shape, o
 through the standard normal's quantile function to a bell shape; inverse interpolates
 back. Both are non-decreasing and reverse each other within the fitted range; values
 outside it are pressed to its ends (0 or 1) and reported by the plan like any value outside
-the fitted range. Where several quantiles are equal (many tied values), a value there maps
-to the middle of their ranks, as scikit-learn's ``QuantileTransformer`` does.
+the fitted range. Where several quantiles inside the range are equal (many tied values), a
+value there maps to the middle of their ranks, as scikit-learn's ``QuantileTransformer``
+does; the smallest and largest fitted values always map to 0 and 1.
 """
 
 from __future__ import annotations
@@ -70,7 +71,7 @@ class Quantile(Method):
         q = np.maximum.accumulate(q)  # rounding must not make the quantiles decrease
         warnings = []
         if q[0] == q[-1]:
-            warnings.append("all values are the same, so every value becomes the middle rank")
+            warnings.append("all values are the same, so every value becomes 0")
         params = {"shape": options["shape"], "quantiles": [float(v) for v in q]}
         return FitResult(params, warnings, data_range=(float(q[0]), float(q[-1])))
 
@@ -81,6 +82,11 @@ class Quantile(Method):
         # Interpolating from both ends and averaging puts a value that equals several tied
         # quantiles at the middle of their ranks (np.interp alone would take one end).
         u = 0.5 * (np.interp(x, q, r) - np.interp(-x, -q[::-1], -r[::-1]))
+        # The ends are the ends, ties or not: the smallest fitted value (and anything
+        # below) becomes rank 0, the largest rank 1; a constant column becomes 0, as
+        # min-max makes it its 'low' (scikit-learn's QuantileTransformer does the same).
+        u = np.where(x >= q[-1], 1.0, u)
+        u = np.where(x <= q[0], 0.0, u)
         if params["shape"] == "normal":
             from scipy.special import ndtri
 
@@ -109,5 +115,6 @@ class Quantile(Method):
             raise ParamError("quantiles", "must never decrease")
         if q[0] != lo or q[-1] != hi:
             raise ParamError(
-                "quantiles", f"must run from the smallest to the largest fitted value [{lo!r}, {hi!r}]"
+                "quantiles",
+                f"must run from the smallest to the largest fitted value [{lo!r}, {hi!r}]",
             )
