@@ -850,17 +850,33 @@ def test_writing_waits_for_fits_still_running(qtbot, window, big_table, tmp_path
 def test_export_uses_the_file_type_chosen_in_the_dialog(
     qtbot, opened, tmp_path, wait_job, monkeypatch
 ):
-    from scalewright.gui import main_window
+    from scalewright.gui import file_dialogs
 
     w = opened
     click_row(qtbot, w, "yield_kg")
     choose_method(w, "zscore")
     monkeypatch.setattr(
-        main_window.QFileDialog,
-        "getSaveFileName",
+        file_dialogs,
+        "save_file_name",
         lambda *a, **k: (str(tmp_path / "scaled"), "Comma-separated text (*.csv)"),
     )
     w.act_export.trigger()
     wait_job(w)
     assert (tmp_path / "scaled.csv").is_file()
     assert not (tmp_path / "scaled.xlsx").exists()
+
+
+def test_file_dialogs_open_readable_and_remember_their_size(qtbot, qapp):
+    """Issue 8, item 7: open and save dialogs large enough to read, their size kept."""
+    from PySide6.QtCore import QSettings
+
+    from scalewright.gui import file_dialogs
+
+    QSettings().remove(file_dialogs.SETTINGS_KEY)
+    d = file_dialogs.make_dialog(None, "Open data", "", "Data files (*.csv)", save=False)
+    assert (d.width(), d.height()) == file_dialogs.DEFAULT_SIZE
+    d.resize(760, 560)  # within the offscreen screen (800 x 600), which restoring respects
+    file_dialogs.remember(d)
+    again = file_dialogs.make_dialog(None, "Save as", "", "Workbook (*.xlsx)", save=True)
+    assert (again.width(), again.height()) == (760, 560)
+    QSettings().remove(file_dialogs.SETTINGS_KEY)
