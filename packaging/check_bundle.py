@@ -6,7 +6,9 @@
    and lists the libraries' licences, read from the metadata copied into the bundle.
 2. ``scalewright open sample_data/harvest_2025.csv --check-and-quit`` builds the real window
    on Qt's offscreen platform, reads the sample table and quits with status 0.
-3. The icon, desktop entry and AppStream file are in the bundle.
+3. ``scalewright fit`` (numpy, pandas, scipy) writes a project file whose ``app_version`` is
+   that same version.
+4. The icon, desktop entry and AppStream file are in the bundle.
 
 Both runs get a bare environment (no PYTHONPATH, PATH of the system only). When this runs as
 root and ``unshare`` is available (CI's container), they also run in a private mount
@@ -17,6 +19,7 @@ so the bundle cannot lean on one. Exit status 0 when every check passes.
 from __future__ import annotations
 
 import csv
+import json
 import os
 import re
 import shutil
@@ -147,6 +150,25 @@ def check(folder: Path) -> int:
             )
         if "running from the bundle" not in opened.stdout:
             problems.append("the headless start did not run from the bundle")
+
+        # A batch fit (the power transforms use scipy) writes a project whose app_version
+        # must be the same version.
+        project = Path(home) / "check.swproj"
+        fitted = run(
+            [str(program), "fit", str(SAMPLE), "-m", "yield_kg=yeojohnson", "-p", str(project)],
+            env,
+            hide,
+        )
+        saved = json.loads(project.read_text(encoding="utf-8")) if project.is_file() else {}
+        print(
+            f"check: scalewright fit ... -m yield_kg=yeojohnson (status {fitted.returncode}); "
+            f"the project says app_version {saved.get('app_version')!r}"
+        )
+        if fitted.returncode != 0 or saved.get("app_version") != version:
+            problems.append(
+                f"the batch fit failed or wrote another version (status {fitted.returncode})"
+                f"\n{fitted.stdout}{fitted.stderr}"
+            )
 
     resources = folder / "_internal" / "scalewright" / "resources"
     missing = [name for name in RESOURCE_FILES if not (resources / name).is_file()]

@@ -57,6 +57,7 @@ class AboutDialog(QDialog):
         self.table = QTableWidget(len(self.libraries), 3)
         self.table.setHorizontalHeaderLabels(["Library", "Version", "Licence"])
         self.table.verticalHeader().hide()
+        self.table.verticalHeader().setDefaultSectionSize(self.fontMetrics().height() + 8)
         self.table.setEditTriggers(QAbstractItemView.EditTrigger.NoEditTriggers)
         self.table.setSelectionBehavior(QAbstractItemView.SelectionBehavior.SelectRows)
         self.table.setWordWrap(False)
