@@ -66,6 +66,13 @@ QT_NOTE = (
     "code is available from the Qt Project at https://download.qt.io/."
 )
 
+OTHERS_NOTE = (
+    "These packages carry shared libraries of their own (OpenBLAS and the GNU Fortran "
+    "runtime in numpy and scipy, ICU in Qt), and the application folder adds system "
+    "libraries of the machine it was built on; each keeps its own licence. The packages' "
+    "licence texts are in their .dist-info folders."
+)
+
 # Words in a short licence field that show it names a licence (else the classifiers do).
 _LICENCE_WORDS = re.compile(
     r"MIT|BSD|Apache|GPL|PSF|Python|MPL|Mozilla|ISC|Zlib|CC0|Unlicense|Public Domain", re.I
@@ -168,5 +175,5 @@ def version_text() -> str:
         f"  {lib.name.ljust(width)}  {lib.version.ljust(vwidth)}  {lib.licence}"
         for lib in libraries
     ]
-    lines += ["", *textwrap.wrap(QT_NOTE, 88)]
+    lines += ["", *textwrap.wrap(QT_NOTE, 88), "", *textwrap.wrap(OTHERS_NOTE, 88)]
     return "\n".join(lines)

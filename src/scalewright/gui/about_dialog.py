@@ -21,7 +21,7 @@ from PySide6.QtWidgets import (
 )
 
 from .. import __version__
-from ..about import QT_NOTE, Library, bundled_libraries
+from ..about import OTHERS_NOTE, QT_NOTE, Library, bundled_libraries
 
 SUMMARY = (
     "Scale the numeric columns of a table, keep every fitted parameter in a project file, "
@@ -72,7 +72,7 @@ class AboutDialog(QDialog):
         header.setSectionResizeMode(2, QHeaderView.ResizeMode.Stretch)
         lay.addWidget(self.table, 1)
 
-        self.qt_note = QLabel(QT_NOTE)
+        self.qt_note = QLabel(f"{QT_NOTE}<br><br>{OTHERS_NOTE}")
         self.qt_note.setWordWrap(True)
         self.qt_note.setTextInteractionFlags(Qt.TextInteractionFlag.TextSelectableByMouse)
         self.qt_note.setProperty("role", "hint")
