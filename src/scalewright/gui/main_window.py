@@ -31,8 +31,8 @@ from PySide6.QtWidgets import (
     QWidget,
 )
 
-from .. import __version__, tasks
 from .. import io as swio
+from .. import tasks
 from ..engine import METHODS
 from ..errors import Cancelled, ScalewrightError
 from ..project import load_project, locate_source, save_project
@@ -926,14 +926,10 @@ class MainWindow(QMainWindow):
         self.last_message = box
 
     def show_about(self) -> None:
-        box = QMessageBox(self)
-        box.setWindowTitle("About Scalewright")
-        box.setText(
-            f"<b>Scalewright {__version__}</b><br>Scale the number columns of a table, keep "
-            "every fitted value in a project, and turn scaled values back into original units."
-        )
-        box.open()
-        self.last_message = box
+        from .about_dialog import AboutDialog
+
+        self.about_dialog = AboutDialog(self)
+        self.about_dialog.open()
 
     # ================================================================== geometry and closing
 
