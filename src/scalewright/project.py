@@ -54,6 +54,16 @@ def now_iso() -> str:
     return dt.datetime.now(dt.UTC).isoformat(timespec="seconds")
 
 
+@dataclass(frozen=True)
+class FittedOn:
+    """The data one column's parameters were fitted on: the file's size and SHA-256 as it
+    was read, and the number of rows fitted."""
+
+    size: int | None
+    sha256: str | None
+    rows: int
+
+
 @dataclass
 class Project:
     """Everything needed to re-apply or reverse a scaling, without the data itself."""
@@ -70,9 +80,22 @@ class Project:
     created: str = field(default_factory=now_iso)
     modified: str = field(default_factory=now_iso)
     app_version: str = __version__
+    # Columns whose parameters were fitted on other data than the project's source as
+    # recorded above (saved parameters kept after the file changed, beside columns fitted
+    # again): label -> what they were fitted on. Saved as the column's "fitted_on".
+    column_fitted_on: dict[str, FittedOn] = field(default_factory=dict)
     # The file this project was loaded from (a .swproj or a scaled workbook), so that no
     # output is written over it. Not saved, and not part of what makes two projects equal.
     loaded_from: Path | None = field(default=None, compare=False)
+
+    def fitted_on(self, label: str) -> FittedOn | None:
+        """What the column's parameters were fitted on (None when it is not fitted)."""
+        if self.plan is None or label not in self.plan.columns:
+            return None
+        own = self.column_fitted_on.get(label)
+        if own is not None:
+            return own
+        return FittedOn(self.source_size, self.source_sha256, self.plan.n_rows)
 
 
 # =========================================================================== writing
@@ -171,6 +194,9 @@ def project_to_dict(project: Project, project_path: Path | None = None) -> dict[
                 for key, ps in fitted.groups.items()
             }
             entry["warnings"] = [str(w) for w in fitted.warnings]
+            own = project.column_fitted_on.get(label)
+            if own is not None:
+                entry["fitted_on"] = {"size": own.size, "sha256": own.sha256, "rows": own.rows}
         columns[label] = entry
     return {
         "format": FORMAT_NAME,
@@ -563,7 +589,15 @@ _V1_TOP = {
     "columns",
 }
 _V1_PARAM_SET = {"params", "n", "min", "max"}
-_V1_COLUMN = {"method", "options", "n_missing", "n_infinite", "groups", "warnings"} | _V1_PARAM_SET
+_V1_COLUMN = {
+    "method",
+    "options",
+    "n_missing",
+    "n_infinite",
+    "groups",
+    "warnings",
+    "fitted_on",  # optional
+} | _V1_PARAM_SET
 
 
 def _load_v1(doc: dict[str, Any]) -> tuple[Project, str | None]:
@@ -630,6 +664,7 @@ def _load_v1(doc: dict[str, Any]) -> tuple[Project, str | None]:
     raw_columns = _obj(_get(doc, "columns", ""), "columns")
     choices: dict[str, ColumnChoice] = {}
     plan_columns: dict[str, FittedColumn] = {}
+    column_fitted_on: dict[str, FittedOn] = {}
     for label, raw in raw_columns.items():
         path = f"columns.{label}"
         if label not in seen:
@@ -685,6 +720,8 @@ def _load_v1(doc: dict[str, Any]) -> tuple[Project, str | None]:
             for key, g in raw_groups.items()
         }
         warnings = _list_of_str(_get(c, "warnings", path), f"{path}.warnings")
+        if "fitted_on" in c:
+            column_fitted_on[label] = _fitted_on(c["fitted_on"], f"{path}.fitted_on")
         plan_columns[label] = FittedColumn(
             column=label,
             method=method.id,
@@ -710,8 +747,20 @@ def _load_v1(doc: dict[str, Any]) -> tuple[Project, str | None]:
         created=created,
         modified=modified,
         app_version=app_version,  # type: ignore[arg-type]
+        column_fitted_on=column_fitted_on,
     )
     return project, relative
+
+
+def _fitted_on(raw: Any, path: str) -> FittedOn:
+    d = _obj(raw, path)
+    _only(d, {"size", "sha256", "rows"}, path)
+    size = _int(_get(d, "size", path), f"{path}.size", minimum=0, nullable=True)
+    sha = _str(_get(d, "sha256", path), f"{path}.sha256", nullable=True)
+    if sha is not None and not _SHA256.fullmatch(sha):
+        raise _Invalid(f"{path}.sha256", "must be 64 lowercase hexadecimal digits")
+    rows = _int(_get(d, "rows", path), f"{path}.rows", minimum=0)
+    return FittedOn(size, sha, rows)  # type: ignore[arg-type]
 
 
 _LOADERS: dict[int, Callable[[dict[str, Any]], tuple[Project, str | None]]] = {1: _load_v1}
