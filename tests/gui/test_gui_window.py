@@ -678,7 +678,7 @@ def test_opening_a_project_shows_its_table_once_with_the_loading_jobs_figures(
 ):
     import threading
 
-    from scalewright.gui import state
+    from scalewright.session import figures as state
 
     w = opened
     _, project_path = _saved_project(qtbot, w, tmp_path, wait_job)
@@ -715,18 +715,18 @@ def test_opening_a_project_looks_for_its_data_file_in_the_loading_job(
 ):
     import threading
 
-    from scalewright.gui import main_window
+    from scalewright import projects
 
     w = opened
     _, project_path = _saved_project(qtbot, w, tmp_path, wait_job)
     threads = []
-    real = main_window.locate_source
+    real = projects.locate_source
 
     def locate(*args, **kwargs):
         threads.append(threading.current_thread() is threading.main_thread())
         return real(*args, **kwargs)
 
-    monkeypatch.setattr(main_window, "locate_source", locate)
+    monkeypatch.setattr(projects, "locate_source", locate)
     w.open_project(project_path)
     wait_job(w)
     assert threads == [False]
