@@ -5,6 +5,7 @@
   scheduled off the interface thread;
 - ``session``: choices, fit settings, selection, the unsaved flag and where each column's
   parameters came from, announced with psygnal events;
+- ``columns``: the per-column reads the panels make (figures, outcome, scaled values);
 - ``display``: a range in both units and the fit in words, for the panels.
 """
 
