@@ -18,7 +18,7 @@ import pytest
 
 SRC = Path(__file__).resolve().parents[1] / "src" / "scalewright"
 # Packages and modules below the window (paths relative to SRC).
-QT_FREE = ["engine", "io", "session", "project.py", "projects.py", "tasks.py", "cli.py"]
+QT_FREE = ["engine", "io", "session", "project", "projects.py", "tasks.py", "cli.py"]
 QT_NAMES = ("PySide6", "shiboken6", "pyqtgraph", "PyQt5", "PyQt6", "PySide2", "qtpy")
 
 BLOCKER = textwrap.dedent(

@@ -82,25 +82,15 @@ def fit_warnings(label: str, outcome: FitOutcome | None, group_by: str | None) -
 
 
 def describe_outcome(outcome: FitOutcome | None) -> str:
-    """The fitted parameters in one plain line, e.g. 'mean 75.5, sd 36.7 (sample sd)'."""
+    """The fitted parameters in one plain line, e.g. 'mean 75.5, sd 36.7, sample sd (...)'."""
     if outcome is None:
         return "Kept as it is."
     if isinstance(outcome, FitFailed):
         return outcome.message
     state = outcome.column
-    p = state.pooled.params
     method = get_method(state.method)
-    parts = []
-    for key, value in p.items():
-        if key in ("quantile_rule", "ddof", "standardize"):
-            continue
-        if isinstance(value, float):
-            parts.append(f"{key} {value:.6g}")
-        else:
-            parts.append(f"{key} {value}")
-    text = f"Fitted on {state.pooled.n:,} values: " + ", ".join(parts)
-    if "ddof" in p:
-        text += " (sample sd)" if p["ddof"] == 1 else " (population sd)"
+    words = method.describe_params(state.pooled.params, digits=6)
+    text = f"Fitted on {state.pooled.n:,} values: {words}"
     if state.groups:
         text += f"; one set per group ({len(state.groups)} groups)"
     return f"{method.name}. {text}."

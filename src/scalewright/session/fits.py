@@ -20,6 +20,7 @@ import numpy as np
 import pandas as pd
 
 from ..engine import (
+    METHODS,
     ColumnChoice,
     ColumnSummary,
     FitSettings,
@@ -32,8 +33,8 @@ from ..errors import ScalewrightError
 from .figures import ColumnFigures, Figures, figures_of
 
 # ---------------------------------------------------------------------------------------
-# Method facts the session needs. The lead engineer will replace these two sets by
-# attributes of each method (engine/methods.py); they are defined here and nowhere else.
+# Method facts the session needs, read from each method's own description (slow_fit,
+# linear); these two sets are defined here and nowhere else.
 # ---------------------------------------------------------------------------------------
 
 # Methods whose fit sorts or searches (robust: quantiles; Box-Cox and Yeo-Johnson: a search
@@ -41,11 +42,11 @@ from .figures import ColumnFigures, Figures, figures_of
 # and the power transforms), take tens of milliseconds at a million values: from this many
 # values on they run in the background when a runner is attached, as do fits per group.
 # The straight-line methods are one pass over the values and are fitted at once.
-BACKGROUND_METHODS = frozenset({"robust", "log", "boxcox", "yeojohnson"})
+BACKGROUND_METHODS = frozenset(m.id for m in METHODS.values() if m.slow_fit)
 
 # Methods whose forward map is a straight line a*x + b: their scaled summary figures follow
 # exactly from the original ones, without touching the values.
-AFFINE_METHODS = frozenset({"none", "minmax", "zscore", "decimal", "robust", "maxabs"})
+AFFINE_METHODS = frozenset(m.id for m in METHODS.values() if m.linear)
 
 BACKGROUND_VALUES = 200_000
 
