@@ -2,7 +2,8 @@
 
 The same calls as the window (``scalewright.tasks``), with no Qt import unless the window
 is asked for. Exit status: 0 success; 1 bad input, with one line ``scalewright: <message>``
-on standard error and no output file left behind; 2 a usage error (argparse).
+on standard error and no output file left behind; 2 a usage error (argparse); 130 or 143
+when stopped by Ctrl-C (SIGINT) or SIGTERM, after removing any unfinished file.
 See ``docs/command-line.md``.
 """
 
@@ -11,7 +12,9 @@ from __future__ import annotations
 import argparse
 import contextlib
 import os
+import signal
 import sys
+import threading
 from collections.abc import Callable, Sequence
 from pathlib import Path
 from typing import Any
@@ -609,6 +612,43 @@ def _fail(message: str) -> int:
     return 1
 
 
+class Stopped(BaseException):
+    """SIGINT or SIGTERM arrived: unwinds like Ctrl-C, so every ``finally`` and
+    ``atomic_path`` removes its unfinished files before the command ends."""
+
+    def __init__(self, signum: int) -> None:
+        super().__init__(signum)
+        self.signum = signum
+
+
+_STOP_WORDS = {signal.SIGINT: "by Ctrl-C", signal.SIGTERM: "by a request to end (SIGTERM)"}
+
+
+@contextlib.contextmanager
+def _stop_on_signals():
+    """Turn SIGINT and SIGTERM into :class:`Stopped` while a batch command runs.
+
+    Only the first signal is acted on; later ones are ignored so that removing the
+    unfinished files is not itself cut short.
+    """
+    if threading.current_thread() is not threading.main_thread():
+        yield
+        return
+    caught = tuple(_STOP_WORDS)
+
+    def stop(signum, frame) -> None:
+        for s in caught:
+            signal.signal(s, signal.SIG_IGN)
+        raise Stopped(signum)
+
+    previous = {s: signal.signal(s, stop) for s in caught}
+    try:
+        yield
+    finally:
+        for s, handler in previous.items():
+            signal.signal(s, handler)
+
+
 def main(argv: Sequence[str] | None = None) -> int:
     """Run the command line; return the exit status."""
     parser = build_parser()
@@ -616,7 +656,16 @@ def main(argv: Sequence[str] | None = None) -> int:
     try:
         if args.command is None:
             return _open_window(None)
-        return _COMMANDS[args.command](args)
+        if args.command == "open":
+            return _COMMANDS[args.command](args)
+        with _stop_on_signals():
+            return _COMMANDS[args.command](args)
+    except Stopped as stop:
+        # The conventional status of a program ended by a signal: 128 + its number.
+        sys.stderr.write(
+            f"{PROG}: stopped {_STOP_WORDS[stop.signum]}; no unfinished file was left\n"
+        )
+        return 128 + int(stop.signum)
     except ScalewrightError as err:
         return _fail(str(err))
     except OSError as err:
@@ -629,7 +678,7 @@ def main(argv: Sequence[str] | None = None) -> int:
     except MemoryError:
         return _fail("not enough memory for this file")
     except KeyboardInterrupt:
-        sys.stderr.write(f"\n{PROG}: interrupted\n")
+        sys.stderr.write(f"{PROG}: stopped by Ctrl-C\n")
         return 130
     except Exception as err:  # a bug: still one line, never a traceback
         if os.environ.get("SCALEWRIGHT_DEBUG"):
