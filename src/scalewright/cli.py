@@ -498,8 +498,10 @@ _KEY_PARAMS = {
 
 
 def _number(v: Any) -> str:
+    from .number_text import number_text
+
     if isinstance(v, float):
-        return f"{v:.10g}"
+        return number_text(v, ".10g")
     return str(v)
 
 

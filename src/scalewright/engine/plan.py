@@ -17,6 +17,7 @@ import numpy as np
 import pandas as pd
 
 from ..errors import ColumnError, ScalewrightError
+from ..number_text import number_text
 from .methods import FitResult, Method, get_method
 
 
@@ -494,7 +495,7 @@ def _run(
         if report.n_outside and not clip:
             report.warnings.append(
                 f"{report.n_below} values below and {report.n_above} above the fitted range "
-                f"[{fc.pooled.min!r}, {fc.pooled.max!r}]"
+                f"[{number_text(fc.pooled.min, 'r')}, {number_text(fc.pooled.max, 'r')}]"
                 if not fc.groups
                 else f"{report.n_below} values below and {report.n_above} above their group's fitted range"
             )

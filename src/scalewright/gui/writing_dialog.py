@@ -33,6 +33,7 @@ from PySide6.QtWidgets import (
 from .. import engine, tasks
 from .. import io as swio
 from ..errors import ScalewrightError
+from ..number_text import number_text
 from . import jobs, theme
 from .errors import details_of, plain_message
 from .file_rows import FileRow, OutputRow
@@ -74,7 +75,7 @@ def saved_parameters(fc) -> str:
         if isinstance(value, bool):
             value = "yes" if value else "no"
         elif isinstance(value, float):
-            value = f"{value:.10g}"
+            value = number_text(value, ".10g")
         parts.append(f"{PARAMETER_WORDS.get(key, key)} {value}")
     return ", ".join(parts)
 
