@@ -47,13 +47,16 @@ examples:
 APPLY_EXAMPLES = """\
 examples:
   scalewright apply harvest.swproj harvest_2026.csv -o harvest_2026_scaled.csv
-  scalewright apply harvest_2025_scaled.xlsx harvest_2026.xlsx -o harvest_2026_scaled.xlsx --clip"""
+  scalewright apply harvest_2025_scaled.xlsx harvest_2026.xlsx -o harvest_2026_scaled.xlsx --clip
+  scalewright apply harvest.swproj yields_2026.csv --as yield_2026=yield_kg -o yields_scaled.csv"""
 
 RESTORE_EXAMPLES = """\
 examples:
   scalewright restore harvest.swproj harvest_2026_scaled.csv -o harvest_2026_restored.csv
   scalewright restore harvest_2025_scaled.xlsx predicted_yield_scaled.csv \\
-      --as predicted_yield=yield_kg -o predicted_yield_kg.csv"""
+      --as predicted_yield=yield_kg -o predicted_yield_kg.csv
+  scalewright restore harvest.swproj predicted_yield_scaled.csv --as predicted_yield=yield_kg \\
+      --name predicted_yield=predicted_yield_kg -o predicted_yield_kg.csv"""
 
 SHOW_EXAMPLES = """\
 examples:
@@ -144,6 +147,15 @@ def build_parser() -> argparse.ArgumentParser:
         action="store_true",
         help="move values outside the fitted range to its nearest end first",
     )
+    p.add_argument(
+        "--as",
+        dest="mapping",
+        metavar="COLUMN=FITTED_COLUMN",
+        action="append",
+        default=[],
+        help="scale COLUMN of DATA with the parameters fitted for FITTED_COLUMN (for a file "
+        "whose column has another name); repeat for more columns",
+    )
 
     p = commands.add_parser(
         "restore",
@@ -165,6 +177,15 @@ def build_parser() -> argparse.ArgumentParser:
         action="append",
         default=[],
         help="restore COLUMN of DATA with the parameters fitted for SOURCE_COLUMN",
+    )
+    p.add_argument(
+        "--name",
+        dest="names",
+        metavar="COLUMN=NEW_NAME",
+        action="append",
+        default=[],
+        help="call restored COLUMN NEW_NAME in the output (by default it keeps its name); "
+        "repeat for more columns",
     )
 
     p = commands.add_parser(
@@ -342,6 +363,17 @@ def parse_mapping(pairs: Sequence[str], fitted: Sequence[str]) -> dict[str, str]
     return out
 
 
+def parse_names(pairs: Sequence[str]) -> dict[str, str]:
+    """``--name COLUMN=NEW_NAME`` pairs, split at the first ``=``."""
+    out: dict[str, str] = {}
+    for text in pairs:
+        column, new = _split_pair(text, "--name", "COLUMN=NEW_NAME")
+        if column in out:
+            raise OptionError(f"--name names the column '{column}' twice")
+        out[column] = new
+    return out
+
+
 # --------------------------------------------------------------------------- commands
 
 
@@ -430,15 +462,33 @@ def _report_notes(reports) -> list[str]:
 
 
 def cmd_apply(args: argparse.Namespace) -> int:
-    from .tasks import apply_to_file, check_target, describe_reports, load_project_or_workbook
+    from .tasks import (
+        MissingFittedColumn,
+        apply_to_file,
+        check_target,
+        describe_reports,
+        load_project_or_workbook,
+    )
 
     output = check_target(args.output, source=args.data)
     project = load_project_or_workbook(args.project)
     check_target(output, source=args.data, project=project)
-    with _progress("scaling") as progress:
-        reports = apply_to_file(
-            project, args.data, output, clip=args.clip, sheet=args.sheet, progress=progress
-        )
+    mapping = parse_mapping(args.mapping, list(project.plan.columns) if project.plan else [])
+    try:
+        with _progress("scaling") as progress:
+            reports = apply_to_file(
+                project,
+                args.data,
+                output,
+                clip=args.clip,
+                mapping=mapping,
+                sheet=args.sheet,
+                progress=progress,
+            )
+    except MissingFittedColumn as err:
+        raise ScalewrightError(
+            f"{err}; if it has another name there, pair them with --as COLUMN={err.column}"
+        ) from None
     for line in describe_reports(reports):
         print(line)
     print(f"scaled data written to {output}")
@@ -460,10 +510,17 @@ def cmd_restore(args: argparse.Namespace) -> int:
     if project.plan is None:
         raise ScalewrightError(f"{args.project}: the project has no fitted parameters")
     mapping = parse_mapping(args.mapping, list(project.plan.columns))
+    names = parse_names(args.names)
     try:
         with _progress("restoring") as progress:
             reports = restore_file(
-                project, args.data, output, mapping=mapping, sheet=args.sheet, progress=progress
+                project,
+                args.data,
+                output,
+                mapping=mapping,
+                names=names,
+                sheet=args.sheet,
+                progress=progress,
             )
     except NothingToRestore as err:
         raise ScalewrightError(f"{err}; name the pairs with --as COLUMN=SOURCE_COLUMN") from None
