@@ -311,3 +311,4 @@ def test_a_file_that_is_not_a_table_says_so_and_lists_the_types(
     assert "CSV (.csv)" in shown and "Workbook (.xlsx, .xlsm)" in shown and "(.ods)" in shown
     assert "not a table" in dialog.preview_caption.text()
     assert not dialog.ok_button.isEnabled()
+    save_screenshot(dialog, f"import_dialog_not_a_table_{path.suffix[1:]}", tmp_path)
