@@ -555,7 +555,7 @@ _KEY_PARAMS = {
 
 
 def _number(v: Any) -> str:
-    from .number_text import number_text
+    from .engine.number_text import number_text
 
     if isinstance(v, float):
         return number_text(v, ".10g")

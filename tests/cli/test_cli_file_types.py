@@ -13,8 +13,8 @@ def test_fit_on_a_readme_says_the_type_is_not_supported(tmp_path, capsys):
     err = capsys.readouterr().err
     assert status == 1
     assert err.splitlines() == [
-        f"scalewright: {readme}: this type of file is not supported (a Markdown text, not a "
-        "table); Scalewright opens tables: CSV (.csv), TSV (.tsv), delimited text (.txt), "
+        f"scalewright: {readme}: this type of file ('.md', a Markdown text) is not supported; "
+        "Scalewright opens tables: CSV (.csv), TSV (.tsv), delimited text (.txt), "
         "Workbook (.xlsx, .xlsm), older workbook (.xls) and OpenDocument spreadsheet (.ods)"
     ]
     assert not (tmp_path / "p.swproj").exists()

@@ -57,7 +57,7 @@ def test_wrong_extension(tmp_path):
     path.write_bytes(b"%PDF-1.4 invented")
     expect(
         path,
-        "this type of file is not supported (a PDF document, not a table); Scalewright opens "
+        "this type of file ('.pdf', a PDF document) is not supported; Scalewright opens "
         "tables: CSV (.csv), TSV (.tsv), delimited text (.txt), Workbook (.xlsx, .xlsm), "
         "older workbook (.xls) and OpenDocument spreadsheet (.ods)",
     )

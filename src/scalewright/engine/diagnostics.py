@@ -6,8 +6,8 @@ from dataclasses import asdict, dataclass
 
 import numpy as np
 
-from ..number_text import number_text
 from . import numerics
+from .number_text import number_text
 
 
 @dataclass(frozen=True)

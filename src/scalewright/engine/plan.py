@@ -17,8 +17,8 @@ import numpy as np
 import pandas as pd
 
 from ..errors import ColumnError, ScalewrightError
-from ..number_text import number_text
 from .methods import FitResult, Method, get_method
+from .number_text import number_text
 
 
 @dataclass(frozen=True)

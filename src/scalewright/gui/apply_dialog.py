@@ -28,7 +28,7 @@ from PySide6.QtWidgets import (
 
 from .. import engine, tasks
 from .. import io as swio
-from ..number_text import number_text
+from ..engine.number_text import number_text
 from . import theme
 from .widgets import MUTED_STYLE, escape_html, plural, set_message
 from .writing_dialog import WritingDialog, saved_parameters

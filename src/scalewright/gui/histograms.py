@@ -17,7 +17,7 @@ from PySide6.QtCore import QPointF, Qt, QTimer
 from PySide6.QtWidgets import QGridLayout, QHBoxLayout, QLabel, QPushButton, QVBoxLayout, QWidget
 
 from ..engine import get_method
-from ..number_text import number_text
+from ..engine.number_text import number_text
 from . import theme
 from .state import Figures, RangeInfo, Session
 

@@ -32,8 +32,8 @@ from PySide6.QtWidgets import (
 
 from .. import engine, tasks
 from .. import io as swio
+from ..engine.number_text import number_text
 from ..errors import ScalewrightError
-from ..number_text import number_text
 from . import jobs, theme
 from .errors import details_of, plain_message
 from .file_rows import FileRow, OutputRow

@@ -78,12 +78,8 @@ def check_extension(path: Path) -> None:
     if suffix in SUPPORTED_READ:
         return
     seems = _KNOWN_SUFFIXES.get(suffix)
-    ending = f"'{suffix}' files" if suffix else "files without an extension"
-    what = (
-        f"this type of file is not supported ({seems}, not a table)"
-        if seems
-        else (f"this type of file is not supported ({ending} are not tables Scalewright reads)")
-    )
+    kind = f"'{suffix}'" if suffix else "no extension"
+    what = f"this type of file ({kind}{', ' + seems if seems else ''}) is not supported"
     raise refuse(path, what)
 
 

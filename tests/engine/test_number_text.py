@@ -7,7 +7,7 @@ import math
 import numpy as np
 import pytest
 
-from scalewright.number_text import number_text
+from scalewright.engine.number_text import number_text
 
 
 @pytest.mark.parametrize(

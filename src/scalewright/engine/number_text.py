@@ -3,7 +3,7 @@
 The sign is always the ASCII hyphen-minus, so that any number a user reads (a fitted
 parameter, a histogram readout, a cell) can be copied into an option, a command or a file
 and read back. A value that rounds to zero is written without a sign: "-0.0" says nothing
-a reader needs and looks like a fault. No imports, so every layer may use it.
+a reader needs and looks like a fault. No imports; it sits in the engine, the lowest layer, so every layer may use it.
 """
 
 from __future__ import annotations
