@@ -28,6 +28,7 @@ from PySide6.QtWidgets import (
 
 from .. import engine, tasks
 from .. import io as swio
+from ..engine.number_text import number_text
 from . import theme
 from .widgets import MUTED_STYLE, escape_html, plural, set_message
 from .writing_dialog import WritingDialog, saved_parameters
@@ -206,7 +207,7 @@ class ApplyDialog(WritingDialog):
                 rep = self._preview_reports[column]
                 outside_total += rep.n_outside
                 range_tip = (
-                    f"Fitted range: {fc.pooled.min:.10g} to {fc.pooled.max:.10g}"
+                    f"Fitted range: {number_text(fc.pooled.min)} to {number_text(fc.pooled.max)}"
                     if not fc.groups
                     else "Each group has its own fitted range."
                 )
