@@ -605,6 +605,9 @@ def _load_v1(doc: dict[str, Any]) -> tuple[Project, str | None]:
         if c in seen:
             raise _Invalid(f"table.columns[{i}]", f"'{c}' appears twice")
         seen.add(c)
+    for label in read_options.kinds:  # kind corrections (absent in older files: none)
+        if label not in seen:
+            raise _Invalid(f"read_options.kinds.{label}", "is not a column of the table")
 
     fit_doc = _obj(_get(doc, "fit", ""), "fit")
     _only(fit_doc, {"fit_where", "group_by", "rows_fitted"}, "fit")

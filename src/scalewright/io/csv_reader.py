@@ -13,7 +13,7 @@ from __future__ import annotations
 
 import codecs
 import re
-from dataclasses import dataclass
+from dataclasses import dataclass, replace
 from pathlib import Path
 from typing import NamedTuple
 
@@ -24,7 +24,8 @@ import pyarrow.csv as pacsv
 
 from ..errors import Cancelled, ReadError
 from . import detect as det
-from .kinds import arrow_to_numpy, classify_arrow, decimal_comma_note
+from .kinds import arrow_to_numpy, classify_arrow, decimal_comma_note, text_series
+from .labels import unique_labels
 from .options import CancelCheck, ColumnKind, Progress, ReadOptions, Table
 from .table import RawTable, build_table
 
@@ -130,9 +131,9 @@ def _read_whole(
         rest = body[int(starts[1]) :]
     _check_cancelled(cancelled)
     layout = head.layout(encoding, quoted=data.find(b'"', found.offset) >= 0)
-    floats = _planned_floats(head, layout) if preview_rows is None else set()
+    floats = _planned_floats(head, layout, options) if preview_rows is None else set()
     frame = _read_body(path, rest, layout, head.scan, floats)
-    return _finish(path, frame, rest, layout, head, progress=progress, cancelled=cancelled)
+    return _finish(path, options, frame, rest, layout, head, progress=progress, cancelled=cancelled)
 
 
 def _read_streamed(
@@ -170,12 +171,12 @@ def _read_streamed(
     _check_cancelled(cancelled)
     layout = head.layout(encoding, quoted=True)
     rest = _FileTail(Path(path), skipped + found.offset + int(head.scan.starts[1]))
-    floats = _planned_floats(head, layout)
+    floats = _planned_floats(head, layout, options)
     try:
         frame = _read_body(path, rest, layout, head.scan, floats)
     except (pa.ArrowException, OSError):
         return None  # a row that does not split, or bytes that are not UTF-8, further down
-    return _finish(path, frame, rest, layout, head, progress=progress, cancelled=cancelled)
+    return _finish(path, options, frame, rest, layout, head, progress=progress, cancelled=cancelled)
 
 
 def _check_cancelled(cancelled: CancelCheck | None) -> None:
@@ -290,28 +291,37 @@ def _examine(
     return _Head(found, body, stretch, scan, headers, decimal, thousands)
 
 
-def _planned_floats(head: _Head, layout: TextLayout) -> set[int]:
-    """Columns to parse as numbers directly, judged on the scanned stretch."""
+def _planned_floats(head: _Head, layout: TextLayout, options: ReadOptions) -> set[int]:
+    """Columns to parse as numbers directly, judged on the scanned stretch; never a column
+    the options read as another kind, which needs its cells as written."""
     starts = head.scan.starts
     if head.stretch < len(head.body) and len(starts) > 2:
         # The sample stops before the last scanned row, which may continue past the stretch.
-        return _float_columns(head.body[int(starts[1]) : int(starts[-1])], layout)
+        floats = _float_columns(head.body[int(starts[1]) : int(starts[-1])], layout)
+        labels = unique_labels(head.headers)
+        return {i for i in floats if labels[i] not in options.kinds}
     return set()
 
 
-def _finish(path, frame, rest, layout: TextLayout, head: _Head, *, progress, cancelled) -> Table:
+def _finish(
+    path, options: ReadOptions, frame, rest, layout: TextLayout, head: _Head, *, progress, cancelled
+) -> Table:
     """Classify the parsed columns into the Table (``table.build_table``)."""
     decimal, thousands = layout.decimal, layout.thousands
 
     def classify(cells, _i, label):
         return _classify_read(cells, label, decimal, thousands)
 
+    def text(cells, _i):
+        return text_series(cells)
+
     raw = RawTable(
         path,
         frame,
         head.headers,
-        layout.read_options(),
+        replace(layout.read_options(), kinds=options.kinds),
         classify,
+        text,
         head.found.notes,
         bare_tail=lambda limit: _bare_tail(rest, limit, layout.width),
     )

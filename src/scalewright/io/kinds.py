@@ -19,6 +19,9 @@ import pyarrow.compute as pc
 
 from .options import ColumnKind
 
+# What classifying a column gives: the converted values, the kind, and notes for the user.
+Classified = tuple[pd.Series, ColumnKind, list[str]]
+
 # Spreadsheet and statistics exports commonly write these for "no value" (common practice).
 MISSING_MARKERS = frozenset({"na", "n/a", "nan", "null", "#n/a", "none"})
 # Beyond 15 significant digits a double cannot hold every integer exactly (IEEE 754

@@ -17,11 +17,11 @@ import pandas as pd
 import pyarrow as pa
 
 from ..errors import Cancelled
+from .corrections import described, read_as
+from .kinds import Classified
 from .labels import unique_labels
 from .options import CancelCheck, ColumnKind, Progress, ReadOptions, Table
 
-# What classifying a column gives: the converted values, the kind, and notes for the user.
-Classified = tuple[pd.Series, ColumnKind, list[str]]
 # A column's cells as the reader holds them (an Arrow column, or a pandas column).
 Cells = pa.ChunkedArray | pd.Series
 
@@ -32,7 +32,8 @@ class RawTable:
 
     ``frame`` is a DataFrame (workbooks: filled cells non-null) or the Arrow table of a
     text file. ``classify(cells, i, label)`` decides column ``i``, whose cells in ``frame``
-    are ``cells``. ``bare_tail(n)`` (text files) says how many of the last ``n`` rows with
+    are ``cells``; ``text(cells, i)`` gives those cells as the file writes them, for a
+    column the options ask to read as another kind (``corrections``). ``bare_tail(n)`` (text files) says how many of the last ``n`` rows with
     no value are export leftovers to leave out; without it all of them are.
     """
 
@@ -41,6 +42,7 @@ class RawTable:
     headers: list[str]
     options: ReadOptions  # the options as resolved, recorded in the Table
     classify: Callable[[Cells, int, str], Classified]
+    text: Callable[[Cells, int], pd.Series]
     notes: list[str] = field(default_factory=list)
     sheets: list[str] = field(default_factory=list)
     bare_tail: Callable[[int], int] | None = None
@@ -78,7 +80,11 @@ def build_table(
             raise Cancelled()
         if progress is not None:
             progress(span[0] + (span[1] - span[0]) * done / len(keep))
-        series, kind, col_notes = raw.classify(cells.column(i), i, label)
+        column = cells.column(i)
+        series, kind, col_notes = raw.classify(column, i, label)
+        wanted = raw.options.kinds.get(label)
+        if wanted is not None and wanted != kind:
+            series, kind, col_notes = _corrected(raw, column, i, label, kind)
         columns[label] = series.reset_index(drop=True)
         kinds[label] = kind
         notes.extend(col_notes)
@@ -91,6 +97,22 @@ def build_table(
     if renamed:
         notes.append("Column names repeated or blank, shown as: " + ", ".join(renamed) + ".")
     return Table(data, headers, kinds, Path(raw.path), raw.options, notes, raw.sheets)
+
+
+def _corrected(raw: RawTable, column: Cells, i: int, label: str, guessed: ColumnKind):
+    """Column ``i`` read as the options ask, from its cells as written (or refused)."""
+    options = raw.options
+    wanted = options.kinds[label]
+    series, kind, notes = read_as(
+        raw.text(column, i),
+        wanted,
+        label,
+        raw.path,
+        options.decimal or ".",
+        options.thousands or "",
+    )
+    note = f"Column '{label}': read as {described(kind)}, as asked (it looked like {described(guessed)})."
+    return series, kind, [note, *notes]
 
 
 class _Cells:

@@ -15,6 +15,7 @@ import pandas as pd
 import python_calamine as calamine
 
 from ..errors import Cancelled, ReadError
+from .corrections import workbook_text
 from .detect import is_title_like
 from .kinds import cell_text, classify_cells
 from .options import CancelCheck, Progress, ReadOptions, Table
@@ -201,12 +202,17 @@ def read_workbook_table(
         return classify_cells(body[:, i], label)
 
     frame = pd.DataFrame(body_filled[:n_rows].astype(object)).where(body_filled[:n_rows])
+
+    def text(_cells, i):
+        return workbook_text(body[:, i])
+
     raw = RawTable(
         path,
         frame.reindex(columns=range(width)),
         headers,
-        ReadOptions(header_row=header_row, sheet=name),
+        ReadOptions(header_row=header_row, sheet=name, kinds=options.kinds),
         classify,
+        text,
         notes,
         sheets,
     )
