@@ -102,7 +102,7 @@ def _all_contain(values: pd.Series, pattern: str, head: int = 1000) -> bool:
     return len(values) <= head or bool(values.iloc[head:].str.contains(pattern).all())
 
 
-def _plain_numbers(arr: pa.Array | pa.ChunkedArray) -> pd.Series | None:
+def _plain_numbers(arr: pa.Array | pa.ChunkedArray, thousands: str = "") -> pd.Series | None:
     """The common case at full speed: every cell is a plain number such as ``-12.5``.
 
     Digit codes (``_digit_code``) are told apart before this is asked. Returns None whenever the column needs a closer look (codes, marks, words), and the
@@ -124,6 +124,8 @@ def _plain_numbers(arr: pa.Array | pa.ChunkedArray) -> pd.Series | None:
         if longest > MAX_NUMBER_DIGITS:
             return None  # long digit strings are codes (see ``_as_number``)
     text = _StringBytes(arr)
+    if thousands == "." and text.contains_any(b"."):
+        return None  # a point between thousands is no decimal point ("1.500" is 1500)
     if text.any_leading_zero():
         return None
     # Arrow's cast accepts exactly [+-]digits[.digits][e[+-]digits] (no spaces, no marks),
@@ -231,7 +233,7 @@ def classify_text(
         arr = pa.array(s, type=pa.large_string())
         if _digit_code(arr):
             return s, ColumnKind.IDENTIFIER, []
-        fast = _plain_numbers(arr)
+        fast = _plain_numbers(arr, thousands)
         if fast is not None:
             return fast.set_axis(s.index), ColumnKind.NUMBER, []
     return _classify_rest(_TextCells.of(s, label), decimal, thousands, from_workbook)
@@ -251,7 +253,7 @@ def classify_arrow(
         return empty_column(n), ColumnKind.EMPTY, []
     if _digit_code(arr):
         return text_series(arr), ColumnKind.IDENTIFIER, []
-    fast = _plain_numbers(arr)
+    fast = _plain_numbers(arr, thousands)
     if fast is not None:
         return fast, ColumnKind.NUMBER, []
     dates = _iso_dates(arr)
