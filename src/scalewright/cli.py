@@ -48,7 +48,9 @@ examples:
   scalewright fit harvest_2025.csv -m '*=zscore' -m pest_trap_count=yeojohnson \\
       --fit-where split=train -p harvest.swproj -o harvest_2025_scaled.xlsx
   scalewright fit harvest_2025.xlsx --sheet harvest_2025 -m soil_ph=minmax:low=-1,high=1 \\
-      --group-by orchard -p soil.swproj"""
+      --group-by orchard -p soil.swproj
+  scalewright fit payments_2025.csv --kind payment_cents=number \\
+      -m payment_cents=zscore -p payments.swproj"""
 
 APPLY_EXAMPLES = """\
 examples:
@@ -163,6 +165,16 @@ def build_parser() -> argparse.ArgumentParser:
         help="the project file to write (.swproj)",
     )
     _add_sheet(p)
+    p.add_argument(
+        "--kind",
+        dest="kinds",
+        metavar="COLUMN=KIND",
+        action="append",
+        default=[],
+        help="read COLUMN as number, identifier, text or date instead of the kind guessed "
+        "(for example amount_cents=number); kept in the project for apply and restore; "
+        "repeat for more columns",
+    )
     p.add_argument(
         "--group-by", metavar="COLUMN", help="fit one set of parameters per value of COLUMN"
     )
@@ -382,6 +394,58 @@ def build_choices(table, specs: Sequence[tuple[str, Any]], group_by: str | None 
     return choices
 
 
+def parse_kinds(pairs: Sequence[str]) -> dict[str, str]:
+    """``--kind COLUMN=KIND`` pairs; split at the last ``=`` (a kind word holds none), so a
+    column name may contain ``=``."""
+    from .io import CORRECTABLE_KINDS
+
+    words = ", ".join(CORRECTABLE_KINDS)
+    out: dict[str, str] = {}
+    for text in pairs:
+        column, sep, kind = text.rpartition("=")
+        if not sep or not column.strip() or not kind.strip():
+            raise OptionError(f"--kind '{text}' must be written COLUMN=KIND, for example id=text")
+        column, kind = column.strip(), kind.strip().lower()
+        if kind not in CORRECTABLE_KINDS:
+            raise OptionError(f"--kind '{text}': '{kind}' is not a kind (use one of {words})")
+        if column in out and out[column] != kind:
+            raise OptionError(f"--kind names the column '{column}' twice")
+        out[column] = kind
+    return out
+
+
+def check_kinds(table, kinds: dict[str, str]) -> None:
+    """Every ``--kind`` column is in the table."""
+    for column in kinds:
+        if column not in table.data.columns:
+            raise ColumnError(
+                column,
+                f"(--kind) there is no such column in {table.source.name} "
+                f"(columns: {_name_list(table.data.columns)})",
+            )
+
+
+def check_identifiers(table, choices) -> None:
+    """A method on a column read as an identifier whose every cell is a number: say how to
+    read it as numbers instead (the general refusal comes later, in ``tasks``)."""
+    import shlex
+
+    from .io import identifier_of_numbers
+
+    for label, choice in choices.items():
+        if choice.method == "none":
+            continue
+        reason = identifier_of_numbers(table, label)
+        if reason is not None:
+            pair = f"{label}=number"
+            quoted = shlex.quote(pair) if shlex.quote(pair) != pair else f"'{pair}'"
+            raise ColumnError(
+                label,
+                f"was read as an identifier ({reason}), and identifiers are never scaled; "
+                f"add --kind {quoted} to scale it",
+            )
+
+
 def _name_list(names, limit: int = 12) -> str:
     names = [str(n) for n in names]
     shown = ", ".join(names[:limit])
@@ -447,12 +511,14 @@ def cmd_fit(args: argparse.Namespace) -> int:
     project_path = check_project_target(args.project, args.data)
     output = check_target(args.output, source=args.data) if args.output else None
     specs = parse_method_specs(args.method)
+    kinds = parse_kinds(args.kinds)
     fit_where = None
     if args.fit_where is not None:
         fit_where = _split_pair(args.fit_where, "--fit-where", "COLUMN=VALUE, e.g. split=train")
 
     with _progress("reading") as progress:
-        table = read_table(args.data, ReadOptions(sheet=args.sheet), progress=progress)
+        table = read_table(args.data, ReadOptions(sheet=args.sheet, kinds=kinds), progress=progress)
+    check_kinds(table, kinds)
     if fit_where is not None and fit_where[0] not in table.data.columns:
         raise ColumnError(
             fit_where[0], f"(--fit-where) there is no such column in {table.source.name}"
@@ -462,6 +528,7 @@ def cmd_fit(args: argparse.Namespace) -> int:
             args.group_by, f"(--group-by) there is no such column in {table.source.name}"
         )
     choices = build_choices(table, specs, args.group_by)
+    check_identifiers(table, choices)
     if not any(c.method != "none" for c in choices.values()):
         raise OptionError(
             "no column to fit: every -m chose 'none' or '*' matched no numeric column"

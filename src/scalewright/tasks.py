@@ -315,6 +315,15 @@ def export_scaled(
     return apply_table(project, table, target, clip=clip, progress=progress, cancelled=cancelled)
 
 
+def reading_for(project: Project, options: ReadOptions | None = None) -> ReadOptions:
+    """How to read a new file for ``project``: the layout as given (else detected afresh),
+    with the project's kind corrections unless ``options`` carries its own."""
+    options = options or ReadOptions()
+    if options.kinds or not project.read_options.kinds:
+        return options
+    return dataclasses.replace(options, kinds=project.read_options.kinds)
+
+
 def _read(
     path: str | os.PathLike,
     options: ReadOptions | None,
@@ -343,14 +352,16 @@ def apply_to_file(
 ) -> list[ColumnReport]:
     """Read ``data_path`` and scale it with the saved parameters (see :func:`apply_table`).
 
-    ``options`` says how to read the file (by default its layout is detected afresh);
-    ``sheet``, when given, picks the worksheet over ``options.sheet``. ``checked`` says
-    the caller has already passed ``target`` through :func:`check_target` with this data
-    file and project (the output is checked once, before anything is read).
+    ``options`` says how to read the file (by default its layout is detected afresh, and
+    the project's kind corrections are kept: :func:`reading_for`); ``sheet``, when given,
+    picks the worksheet over ``options.sheet``. ``checked`` says the caller has already
+    passed ``target`` through :func:`check_target` with this data file and project (the
+    output is checked once, before anything is read).
     """
     _fitted(project)
     target = Path(target) if checked else check_target(target, source=data_path, project=project)
-    table = _read(data_path, options, sheet, _part(progress, 0.0, 0.5), cancelled)
+    reading = reading_for(project, options)
+    table = _read(data_path, reading, sheet, _part(progress, 0.0, 0.5), cancelled)
     return _apply_checked(
         project,
         table,
@@ -473,7 +484,8 @@ def restore_file(
     :func:`apply_to_file`."""
     _fitted(project)
     target = Path(target) if checked else check_target(target, source=data_path, project=project)
-    table = _read(data_path, options, sheet, _part(progress, 0.0, 0.5), cancelled)
+    reading = reading_for(project, options)
+    table = _read(data_path, reading, sheet, _part(progress, 0.0, 0.5), cancelled)
     return _restore_checked(
         project,
         table,

@@ -154,11 +154,10 @@ class ApplyDialog(WritingDialog):
 
     def _reader(self, path: Path, sheet: str | None):
         plan = self._project.plan
+        reading = tasks.reading_for(self._project, swio.ReadOptions(sheet=sheet))
 
         def read(progress, cancelled):
-            table = swio.read_table(
-                path, swio.ReadOptions(sheet=sheet), progress=progress, cancelled=cancelled
-            )
+            table = swio.read_table(path, reading, progress=progress, cancelled=cancelled)
             return table, preview_apply(table, plan)
 
         return read
