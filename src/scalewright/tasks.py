@@ -337,6 +337,24 @@ def _read(
     return read_table(path, options, progress=progress, cancelled=cancelled)
 
 
+def _new_file(
+    project: Project,
+    data_path: str | os.PathLike,
+    target: str | os.PathLike,
+    options: ReadOptions | None,
+    sheet: str | None,
+    progress: Progress | None,
+    cancelled: CancelCheck | None,
+    checked: bool,
+) -> tuple[Path, Table]:
+    """The checked target and the new file read as the project reads it (the first half
+    of the progress), for applying or restoring."""
+    _fitted(project)
+    target = Path(target) if checked else check_target(target, source=data_path, project=project)
+    reading = reading_for(project, options)
+    return target, _read(data_path, reading, sheet, _part(progress, 0.0, 0.5), cancelled)
+
+
 def apply_to_file(
     project: Project,
     data_path: str | os.PathLike,
@@ -358,10 +376,9 @@ def apply_to_file(
     passed ``target`` through :func:`check_target` with this data file and project (the
     output is checked once, before anything is read).
     """
-    _fitted(project)
-    target = Path(target) if checked else check_target(target, source=data_path, project=project)
-    reading = reading_for(project, options)
-    table = _read(data_path, reading, sheet, _part(progress, 0.0, 0.5), cancelled)
+    target, table = _new_file(
+        project, data_path, target, options, sheet, progress, cancelled, checked
+    )
     return _apply_checked(
         project,
         table,
@@ -482,10 +499,9 @@ def restore_file(
     """Read ``data_path`` and turn its scaled values back into original units (see
     :func:`restore_table`). ``options``, ``sheet`` and ``checked`` as for
     :func:`apply_to_file`."""
-    _fitted(project)
-    target = Path(target) if checked else check_target(target, source=data_path, project=project)
-    reading = reading_for(project, options)
-    table = _read(data_path, reading, sheet, _part(progress, 0.0, 0.5), cancelled)
+    target, table = _new_file(
+        project, data_path, target, options, sheet, progress, cancelled, checked
+    )
     return _restore_checked(
         project,
         table,
