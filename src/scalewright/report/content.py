@@ -1,0 +1,524 @@
+"""What a report says about a project, as plain data that the HTML and PDF faces both show.
+
+:func:`build_report` gathers it once: where the parameters came from (the data file and its
+fingerprint as stored in the project, the dates), the cautions, and for every fitted column
+its method, options, parameters (rounded for reading, exact beside them), the formula to
+reverse it with the fitted numbers in place, the fit summary, warnings and the before/after
+histograms. The histograms need the data: when the data file is missing, changed or
+unreadable the report is still complete apart from them, and says why they are absent.
+No Qt here.
+"""
+
+from __future__ import annotations
+
+import datetime as dt
+import os
+from collections.abc import Callable, Mapping, Sequence
+from dataclasses import dataclass, field
+from pathlib import Path
+from typing import Any
+
+import numpy as np
+
+from .. import __version__
+from ..engine import FittedColumn, ParamSet, column_values, get_method, histogram, mapped_edges
+from ..errors import Cancelled, ProjectError, ScalewrightError
+from ..io import ReadOptions, Table, read_table
+from ..project import ALL_ROWS, UNSEEN_GROUPS, Project, locate_source, now_iso, options_text
+from . import svg
+
+Progress = Callable[[float], None]
+CancelCheck = Callable[[], bool]
+
+BINS = 30  # as many bars as the window draws
+SHOWN_DIGITS = 6  # significant digits of a rounded parameter
+ROUNDING_NOTE = (
+    f"Values are shown rounded to {SHOWN_DIGITS} significant digits for reading. The exact "
+    "values (as stored in the project file) are in the last column, and the formulas to "
+    "reverse use them: type those, not the rounded ones."
+)
+SHAPE_CHANGING = ("log", "boxcox", "yeojohnson")
+
+GENERAL_CAUTIONS = (
+    "The parameters were fitted on the rows stated in this report. To scale new data, "
+    "re-apply these same parameters (Apply in the window, or scalewright apply); never fit "
+    "them again on the new data, or the model would receive values on another scale.",
+    "Values clipped into the fitted range when the parameters were applied cannot be "
+    "restored exactly: restoring gives the end of the range, not the value that was there.",
+    "Logarithm, Box-Cox and Yeo-Johnson change the shape of the distribution on purpose; "
+    "the other methods only shift and stretch it.",
+    "Scaled results feed decisions: keep the project file with the model it served, so that "
+    "its inputs can be made again and its answers turned back into original units.",
+)
+
+
+# =========================================================================== the parts
+
+
+@dataclass(frozen=True)
+class Figure:
+    """One histogram: a title above it and the image as standalone SVG text."""
+
+    title: str
+    svg: str
+
+
+@dataclass(frozen=True)
+class ParameterRow:
+    group: str  # which parameter set ("all fitted rows", "orchard = Hilltop", ...)
+    name: str  # the parameter in plain words
+    shown: str  # rounded for reading
+    exact: str  # full precision, as stored
+
+
+@dataclass(frozen=True)
+class ColumnSection:
+    label: str
+    header: str  # the file's own header text for the column
+    anchor: str  # an id for links within the page (column names may hold anything)
+    method: str
+    method_summary: str
+    options: str
+    values_fitted: int  # on all fitted rows (every group together)
+    fit_summary: list[str]
+    parameters: list[ParameterRow]
+    formula: str  # the method's formula to reverse, in parameter names
+    reverse: list[tuple[str, str]]  # (parameter set, formula with the fitted numbers)
+    warnings: list[str]
+    cautions: list[str]
+    figures: list[Figure] = field(default_factory=list)
+    figures_note: str = ""  # how to read the figures (fit rows, groups)
+    figures_missing: str = ""  # why there are no figures ("" when there are)
+
+
+@dataclass(frozen=True)
+class Report:
+    title: str
+    facts: list[tuple[str, str]]  # (what, value) about the project and its data file
+    cautions: list[str]
+    columns: list[ColumnSection]
+    left_as_is: list[str]
+    figures_missing: str  # why no column has figures ("" when the data was read)
+    rounding_note: str = ROUNDING_NOTE
+
+
+# =========================================================================== words
+
+
+# The engine's parameter names in words (as the apply and restore dialogs say them), and
+# switches said as what they mean. One place for the report; see describe_parameters.
+_PARAMETER_WORDS = {
+    "min": "smallest fitted value",
+    "max": "largest fitted value",
+    "low": "smallest becomes",
+    "high": "largest becomes",
+    "mean": "mean",
+    "sd": "sd",
+    "median": "median",
+    "q1": "first quartile",
+    "q3": "third quartile",
+    "scale": "spread (q3 - q1)",
+    "maxabs": "largest size",
+    "j": "divided by 10 to the power",
+    "shift": "added first",
+    "base": "logarithm base",
+    "quantile_rule": "quartiles by",
+    "lambda": "lambda",
+}
+_PARAMETER_SAYINGS = {
+    ("ddof", 1): ("sd divided by", "n - 1 (sample sd)"),
+    ("ddof", 0): ("sd divided by", "n (population sd)"),
+    ("standardize", True): ("standardized afterwards", "yes (mean 0, sd 1)"),
+    ("standardize", False): ("standardized afterwards", "no"),
+}
+
+
+def describe_parameters(method_id: str, params: Mapping[str, Any]) -> list[tuple[str, Any]]:
+    """A parameter set in plain words: [(name in words, raw value or words)], in order."""
+    out: list[tuple[str, Any]] = []
+    for key, value in params.items():
+        said = _PARAMETER_SAYINGS.get((key, value)) if not isinstance(value, float) else None
+        if said is not None:
+            out.append(said)
+        else:
+            out.append((_PARAMETER_WORDS.get(key, key), value))
+    return out
+
+
+def shown_value(value: Any) -> str:
+    """A value rounded for reading."""
+    if isinstance(value, bool):
+        return "yes" if value else "no"
+    if isinstance(value, float):
+        return f"{value:.{SHOWN_DIGITS}g}"
+    if isinstance(value, int):
+        return f"{value}"
+    return str(value)
+
+
+def exact_value(value: Any) -> str:
+    """A value at full precision (Python's repr of a float, which reads back bit for bit)."""
+    if isinstance(value, float):
+        return repr(value)
+    return shown_value(value)
+
+
+def _num(value: float) -> str:
+    """A number as a person would type it in a formula; negatives in parentheses."""
+    text = repr(float(value)) if not isinstance(value, int) else str(value)
+    if text.endswith(".0"):
+        text = text[:-2]
+    return f"({text})" if text.startswith("-") else text
+
+
+def reverse_formula(method_id: str, params: Mapping[str, Any]) -> str:
+    """The formula to turn a scaled value y back into x, with the fitted numbers in place."""
+    p = params
+    if method_id == "minmax":
+        lo, hi, low, high = p["min"], p["max"], p["low"], p["high"]
+        if (low, high) == (0.0, 1.0):
+            return f"x = y * ({_num(hi)} - {_num(lo)}) + {_num(lo)}"
+        return (
+            f"x = (y - {_num(low)}) / ({_num(high)} - {_num(low)}) * ({_num(hi)} - {_num(lo)})"
+            f" + {_num(lo)}"
+        )
+    if method_id == "zscore":
+        return f"x = y * {_num(p['sd'])} + {_num(p['mean'])}"
+    if method_id == "robust":
+        return f"x = y * {_num(p['scale'])} + {_num(p['median'])}"
+    if method_id == "maxabs":
+        return f"x = y * {_num(p['maxabs'])}"
+    if method_id == "decimal":
+        return f"x = y * 10^{_num(int(p['j']))}"
+    if method_id == "log":
+        power = "exp(y)" if p["base"] == "e" else f"{p['base']}^y"
+        return f"x = {power} - {_num(p['shift'])}" if p["shift"] else f"x = {power}"
+    if method_id in ("boxcox", "yeojohnson"):
+        lam = float(p["lambda"])
+        y = f"(y * {_num(p['sd'])} + {_num(p['mean'])})" if p.get("standardize") else "y"
+        if method_id == "boxcox":
+            if lam == 0.0:
+                return f"x = exp({y})"
+            return f"x = ({_num(lam)} * {y} + 1)^(1 / {_num(lam)})"
+        up = f"exp({y}) - 1" if lam == 0.0 else f"({_num(lam)} * {y} + 1)^(1 / {_num(lam)}) - 1"
+        rest = 2.0 - lam
+        down = (
+            f"1 - exp(-{y})" if rest == 0.0 else f"1 - (1 - {_num(rest)} * {y})^(1 / {_num(rest)})"
+        )
+        return f"where {y} >= 0: x = {up}; where {y} < 0: x = {down}"
+    return "x = y"
+
+
+def _when(stamp: str) -> str:
+    """An ISO time stamp as 'YYYY-MM-DD HH:MM:SS UTC' (as stored when it does not parse)."""
+    try:
+        moment = dt.datetime.fromisoformat(stamp)
+    except ValueError:
+        return stamp
+    if moment.tzinfo is not None:
+        moment = moment.astimezone(dt.UTC)
+        return moment.strftime("%Y-%m-%d %H:%M:%S UTC")
+    return moment.strftime("%Y-%m-%d %H:%M:%S")
+
+
+def _count(n: int, word: str) -> str:
+    return f"{n:,} {word}{'' if n == 1 else 's'}"
+
+
+# =========================================================================== building
+
+
+def _rows_words(project: Project) -> str:
+    plan = project.plan
+    assert plan is not None
+    where = plan.settings.fit_where
+    if where is None:
+        return f"all {_count(plan.n_rows, 'row')} of the data file"
+    return f"{_count(plan.n_rows, 'row')}: the rows where {where[0]} is {where[1]}"
+
+
+def _facts(project: Project, project_path: Path | None, source_state: str, made: str):
+    plan = project.plan
+    assert plan is not None
+    facts = [
+        ("Project file", str(project_path) if project_path else "not saved (the window's choices)"),
+        ("Data file", str(project.source) if project.source else "none recorded"),
+    ]
+    if project.source_size is not None:
+        facts.append(("Data file size", f"{project.source_size:,} bytes (as fitted)"))
+    if project.source_sha256 is not None:
+        facts.append(("Data file SHA-256", f"{project.source_sha256} (as fitted)"))
+    facts.append(("Data file now", source_state))
+    read = project.read_options.to_dict()
+    shown = ", ".join(f"{k}={v!r}" for k, v in read.items() if v not in (None, ""))
+    facts.append(("Read with", shown or "detected settings"))
+    facts.append(("Fitted on", _rows_words(project)))
+    if plan.settings.group_by is not None:
+        facts.append(
+            (
+                "Grouped by",
+                f"{plan.settings.group_by}: one parameter set per value, plus one fitted on "
+                "all rows for values not seen when fitting",
+            )
+        )
+    facts.append(
+        ("Project saved", f"{_when(project.modified)} (Scalewright {project.app_version})")
+    )
+    facts.append(("Project created", _when(project.created)))
+    facts.append(("Report made", f"{_when(made)} (Scalewright {__version__})"))
+    return facts
+
+
+def _header_of(project: Project, label: str) -> str:
+    try:
+        return project.headers[project.columns.index(label)]
+    except (ValueError, IndexError):
+        return label
+
+
+def _param_sets(project: Project, fc: FittedColumn) -> list[tuple[str, ParamSet]]:
+    sets = [(ALL_ROWS if not fc.groups else UNSEEN_GROUPS, fc.pooled)]
+    group_by = project.plan.settings.group_by if project.plan else None
+    sets += [(f"{group_by} = {key}", ps) for key, ps in fc.groups.items()]
+    return sets
+
+
+def _fit_summary(project: Project, fc: FittedColumn) -> list[str]:
+    lines = [f"Fitted on {_count(fc.pooled.n, 'value')} from {_rows_words(project)}."]
+    left_out = []
+    if fc.n_missing:
+        left_out.append(_count(fc.n_missing, "blank cell"))
+    if fc.n_infinite:
+        left_out.append(_count(fc.n_infinite, "infinite value"))
+    if left_out:
+        lines.append("Left out of the fit: " + " and ".join(left_out) + " among those rows.")
+    lines.append(
+        f"Fitted range (original units): smallest {shown_value(fc.pooled.min)}, largest "
+        f"{shown_value(fc.pooled.max)}. New values outside it are counted when the "
+        "parameters are applied, and may be clipped into it."
+    )
+    if fc.groups:
+        group_by = project.plan.settings.group_by if project.plan else "the group column"
+        sizes = ", ".join(f"{key} ({ps.n:,})" for key, ps in fc.groups.items())
+        lines.append(
+            f"Fitted separately for each of the {len(fc.groups)} groups of {group_by} "
+            f"(values per group: {sizes}); values of a group not seen when fitting use the "
+            "parameters fitted on all rows."
+        )
+    return lines
+
+
+def _column_cautions(fc: FittedColumn) -> list[str]:
+    cautions = []
+    if fc.method in SHAPE_CHANGING:
+        cautions.append(
+            "This method changes the shape of the distribution on purpose (compare the two "
+            "histograms): equal steps in scaled units are not equal steps in original units."
+        )
+    if fc.method in ("boxcox", "yeojohnson"):
+        cautions.append(
+            "Some scaled values (far beyond the fitted range) have no original value; "
+            "restoring leaves them blank."
+        )
+    return cautions
+
+
+def _parameters(fc: FittedColumn, sets: Sequence[tuple[str, ParamSet]]) -> list[ParameterRow]:
+    rows = []
+    for group, ps in sets:
+        described = describe_parameters(fc.method, ps.params)
+        for name, value in described:
+            rows.append(ParameterRow(group, name, shown_value(value), exact_value(value)))
+    return rows
+
+
+def _figures(
+    project: Project, fc: FittedColumn, header: str, values: np.ndarray
+) -> tuple[list[Figure], str]:
+    h = histogram(values, BINS)
+    scaled = mapped_edges(h.edges, fc)
+    name = get_method(fc.method).name
+    n = int(h.counts.sum())
+    figures = [
+        Figure(
+            "Before: original units",
+            svg.histogram_svg(
+                h.edges,
+                h.counts,
+                colour=svg.ORIGINAL,
+                axis_title=header,
+                description=f"Histogram of {header} in original units ({n:,} values)",
+            ),
+        ),
+        Figure(
+            f"After: scaled with {name}",
+            svg.histogram_svg(
+                scaled,
+                h.counts,
+                colour=svg.SCALED,
+                axis_title=f"{header}, scaled",
+                description=f"Histogram of {header} scaled with {name}: the same bars on "
+                "mapped edges",
+            ),
+        ),
+    ]
+    notes = [
+        f"Every row's value ({n:,} values, blanks left out), in {len(h.counts)} bars. The "
+        "scaled histogram is the same bars with their edges mapped through the transform, so "
+        "bar for bar they hold the same values."
+    ]
+    settings = project.plan.settings if project.plan else None
+    if fc.groups and settings is not None:
+        notes.append(
+            f"Fitted separately for each group of '{settings.group_by}'. The scaled "
+            "histogram uses the parameters fitted on all rows, so it is a guide only."
+        )
+    elif settings is not None and settings.fit_where is not None:
+        col, val = settings.fit_where
+        notes.append(f"Fitted on the rows where {col} is {val}; shown for every row.")
+    lost = ~(np.isfinite(scaled[:-1]) & np.isfinite(scaled[1:])) & (h.counts > 0)
+    if lost.any():
+        notes.append(
+            f"{_count(int(h.counts[lost].sum()), 'value')} in {_count(int(lost.sum()), 'bar')} "
+            "lie outside what the method can map and are not drawn on the scaled side."
+        )
+    return figures, " ".join(notes)
+
+
+def _column(
+    project: Project, index: int, fc: FittedColumn, data: Any, data_problem: str
+) -> ColumnSection:
+    method = get_method(fc.method)
+    header = _header_of(project, fc.column)
+    sets = _param_sets(project, fc)
+    figures: list[Figure] = []
+    note = ""
+    missing = data_problem
+    if not missing:
+        try:
+            values = column_values(data, fc.column)
+        except ScalewrightError as err:
+            missing = f"the figures could not be drawn: {err}"
+        else:
+            figures, note = _figures(project, fc, header, values)
+    return ColumnSection(
+        label=fc.column,
+        header=header,
+        anchor=f"column-{index + 1}",
+        method=method.name,
+        method_summary=method.summary,
+        options=options_text(fc.options) or "none",
+        values_fitted=fc.pooled.n,
+        fit_summary=_fit_summary(project, fc),
+        parameters=_parameters(fc, sets),
+        formula=method.inverse_formula,
+        reverse=[(group, reverse_formula(fc.method, ps.params)) for group, ps in sets],
+        warnings=[str(w) for w in fc.warnings],
+        cautions=_column_cautions(fc),
+        figures=figures,
+        figures_note=note,
+        figures_missing=missing,
+    )
+
+
+def load_data(
+    project: Project,
+    project_path: Path | None,
+    *,
+    progress: Progress | None = None,
+    cancelled: CancelCheck | None = None,
+) -> tuple[Any, str, str]:
+    """(data or None, why the figures cannot be drawn or "", the data file's state in words).
+
+    The data file is found as the command line finds it (:func:`project.locate_source`):
+    at its saved path, else beside the project file. A changed file is not read: its
+    values are not the ones the parameters were fitted on.
+    """
+    check = locate_source(project, project_path)
+    if check.saved is None:
+        return None, "no figures: the project does not name a data file", "none recorded"
+    if not check.found:
+        return (
+            None,
+            f"The figures could not be drawn: {check.message}.",
+            "not found (nor beside the project file)",
+        )
+    state = "found, unchanged (same size and SHA-256)"
+    if check.moved:
+        state = f"found beside the project file, at {check.path}; unchanged"
+    if check.changed:
+        return (
+            None,
+            f"The figures could not be drawn: the data file {check.path} has changed since the "
+            "parameters were fitted (its size or SHA-256 differs), so its values are not the "
+            "ones the parameters describe.",
+            f"{check.path}: changed since the parameters were fitted",
+        )
+    if project.source_size is None and project.source_sha256 is None:
+        state = "found (the project holds no fingerprint to compare)"
+    try:
+        table = read_table(
+            check.path,
+            project.read_options or ReadOptions(),
+            progress=progress,
+            cancelled=cancelled,
+        )
+    except Cancelled:
+        raise
+    except ScalewrightError as err:
+        return (
+            None,
+            f"The figures could not be drawn: the data file could not be read ({err}).",
+            state,
+        )
+    return table.data, "", state
+
+
+def build_report(
+    project: Project,
+    project_path: str | os.PathLike | None = None,
+    *,
+    table: Table | None = None,
+    progress: Progress | None = None,
+    cancelled: CancelCheck | None = None,
+) -> Report:
+    """Everything a report shows about a fitted ``project``.
+
+    ``table``, when given (the window's open data), is used for the histograms instead of
+    reading the data file again, unless its fingerprint differs from the project's.
+    """
+    if project.plan is None:
+        raise ProjectError("project", "has no fitted parameters yet; fit it first")
+    path = Path(project_path) if project_path is not None else None
+    if table is not None:
+        data, problem, state = table.data, "", "open in the window"
+        if (
+            project.source_sha256 is not None
+            and table.sha256 is not None
+            and table.sha256 != project.source_sha256
+        ):
+            data = None
+            problem = (
+                "The figures could not be drawn: the open data file has changed since the "
+                "parameters were fitted, so its values are not the ones they describe."
+            )
+            state = "changed since the parameters were fitted"
+    else:
+        data, problem, state = load_data(project, path, progress=progress, cancelled=cancelled)
+    made = now_iso()
+    plan = project.plan
+    columns = [_column(project, i, fc, data, problem) for i, fc in enumerate(plan.columns.values())]
+    left = [
+        _header_of(project, label)
+        for label, choice in project.choices.items()
+        if choice.method == "none" and label not in plan.columns
+    ]
+    name = project.source.name if project.source is not None else "a table"
+    return Report(
+        title=f"Scaling report: {name}",
+        facts=_facts(project, path, state, made),
+        cautions=list(GENERAL_CAUTIONS),
+        columns=columns,
+        left_as_is=left,
+        figures_missing=problem,
+    )
