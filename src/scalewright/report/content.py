@@ -363,9 +363,8 @@ def _figures(
         ),
     ]
     notes = [
-        f"Every row's value ({n:,} values, blanks left out), in {len(h.counts)} bars. The "
-        "scaled histogram is the same bars with their edges mapped through the transform, so "
-        "bar for bar they hold the same values."
+        f"Every row's value ({n:,} values, blanks left out) in {len(h.counts)} bars; the "
+        "scaled side is the same bars on edges mapped through the transform."
     ]
     settings = project.plan.settings if project.plan else None
     if fc.groups and settings is not None:

@@ -31,6 +31,7 @@ th, td { text-align: left; vertical-align: top; padding: 3px 8px;
 th { background-color: #f0f0ee; }
 table.figures td { border: none; padding: 0 12px 0 0; }
 code, .exact { font-family: 'DejaVu Sans Mono', Consolas, monospace; font-size: 9pt; }
+.exact { white-space: nowrap; }
 p.formula { font-family: 'DejaVu Sans Mono', Consolas, monospace; font-size: 9pt;
             background-color: #f6f6f4; padding: 4px; margin: 2px 0; }
 .note { color: #555555; font-size: 9pt; }
@@ -43,7 +44,8 @@ p.formula { font-family: 'DejaVu Sans Mono', Consolas, monospace; font-size: 9pt
 PRINT_STYLE = """
 body { font-family: 'DejaVu Sans', Arial, Helvetica, sans-serif; font-size: 9pt;
        color: #222222; }
-h2.column { page-break-before: always; }
+h2.column { page-break-before: always; margin-top: 0; }
+h3 { margin-top: 8px; }
 """
 
 
@@ -108,7 +110,7 @@ def _column(section: ColumnSection, index: int, image: ImageMarkup) -> str:
 
 def render_html(report: Report, image: ImageMarkup = inline_svg, *, printed: bool = False) -> str:
     """The whole report as HTML text (UTF-8, self-contained); ``printed`` for Qt's PDF."""
-    style = (PRINT_STYLE if printed else SCREEN_STYLE) + COMMON_STYLE
+    style = COMMON_STYLE + PRINT_STYLE if printed else SCREEN_STYLE + COMMON_STYLE
     out = [
         "<!DOCTYPE html>",
         '<html lang="en"><head><meta charset="utf-8">',

@@ -20,7 +20,7 @@ from .svg import HEIGHT, WIDTH
 
 # Two histograms side by side must fit the width of an A4 page (Qt lays the page out at
 # 96 pixels per inch: about 680 pixels between 15 mm margins).
-PRINTED_WIDTH = 320
+PRINTED_WIDTH = 310
 SHARPNESS = 3  # images are drawn at this multiple of their printed size
 
 _app = None  # the QGuiApplication made here when the caller had none

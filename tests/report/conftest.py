@@ -1,0 +1,52 @@
+"""Projects to report on: every method fitted on the sample data's training rows."""
+
+from __future__ import annotations
+
+import shutil
+
+import pytest
+
+from scalewright import tasks
+from scalewright.engine import ColumnChoice, FitSettings
+from scalewright.io import read_table
+from scalewright.project import load_project, save_project
+from support import SAMPLE_DATA
+
+# One column per method, so that every formula to reverse appears in one report.
+EVERY_METHOD = {
+    "tree_age_years": ColumnChoice("decimal"),
+    "trunk_girth_cm": ColumnChoice("robust"),
+    "yield_kg": ColumnChoice("boxcox", {"standardize": True}),
+    "fruit_count": ColumnChoice("zscore"),
+    "sugar_brix": ColumnChoice("minmax", {"low": -1, "high": 1}),
+    "irrigation_l_per_week": ColumnChoice("log", {"base": "10"}),
+    "pest_trap_count": ColumnChoice("yeojohnson"),
+    "soil_ph": ColumnChoice("maxabs"),
+    "orchard": ColumnChoice("none"),
+}
+
+
+def fit_and_save(folder, choices, settings):
+    data = folder / "harvest_2025.csv"
+    shutil.copyfile(SAMPLE_DATA / "harvest_2025.csv", data)
+    table = read_table(data)
+    project = tasks.fit_project(table, choices, settings)
+    path = folder / "harvest.swproj"
+    save_project(project, path)
+    return path, data
+
+
+@pytest.fixture
+def every_method(tmp_path):
+    """(project path, data path, loaded project): every method, fitted where split is train."""
+    path, data = fit_and_save(tmp_path, EVERY_METHOD, FitSettings(("split", "train")))
+    return path, data, load_project(path)
+
+
+@pytest.fixture
+def grouped(tmp_path):
+    """(project path, data path, loaded project): z-score of yield_kg per orchard."""
+    path, data = fit_and_save(
+        tmp_path, {"yield_kg": ColumnChoice("zscore")}, FitSettings(None, "orchard")
+    )
+    return path, data, load_project(path)
