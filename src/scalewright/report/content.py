@@ -241,7 +241,10 @@ def _facts(project: Project, project_path: Path | None, source_state: str, made:
     plan = project.plan
     assert plan is not None
     facts = [
-        ("Project file", str(project_path) if project_path else "not saved (the window's choices)"),
+        (
+            "Project file",
+            os.path.abspath(project_path) if project_path else "not saved (the window's choices)",
+        ),
         ("Data file", str(project.source) if project.source else "none recorded"),
     ]
     if project.source_size is not None:
