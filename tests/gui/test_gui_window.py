@@ -140,6 +140,34 @@ def test_choose_methods_multi_select_undo_redo_and_suggest(qtbot, opened):
     w.act_undo.trigger()
     assert s.choice("pest_trap_count").method == "none"
     assert s.dirty
+    # The reason went with the undo (issue 8, item 2) ...
+    assert w.method_panel.reason.text() == ""
+    # ... and goes when another column is selected; it stays while nothing changed.
+    w.act_redo.trigger()
+    qtbot.mouseClick(w.method_panel.suggest_button, Qt.MouseButton.LeftButton)
+    assert "mostly zeros" in w.method_panel.reason.text()
+    w.method_panel.refresh()
+    assert "mostly zeros" in w.method_panel.reason.text()
+    click_row(qtbot, w, "yield_kg")
+    assert w.method_panel.reason.text() == ""
+
+
+def test_a_bar_or_range_readout_does_not_follow_to_another_column(qtbot, opened):
+    """Issue 8, item 2: 'Bar 12 of 30: ...' of one column must not stay on another."""
+    w = opened
+    h = w.histograms
+    click_row(qtbot, w, "yield_kg")
+    assert "Bar 6 of" in h.hover_bar(5)
+    click_row(qtbot, w, "soil_ph")
+    assert h.info.text().strip() == ""
+    h.range_button.click()
+    assert "Selected range" in h.info.text()
+    low = h.range.low
+    click_row(qtbot, w, "yield_kg")
+    # The range is laid out anew on the new column, not carried over in its old units.
+    assert h.range.low != low
+    f = w.session.figures("yield_kg")
+    assert f.min <= h.range.low <= h.range.high <= f.max
 
 
 def test_fit_on_training_rows_and_an_unfittable_choice(qtbot, opened, harvest_table):
@@ -184,7 +212,11 @@ def test_histograms_hover_and_range_are_linked(qtbot, opened):
     assert h.hovered == i
     x0, x1, height = h.scaled.hovered_bar()
     assert (x0, x1) == pytest.approx((edges[i], edges[i + 1]))
-    assert height == hist.counts[i]
+    # Box-Cox widens some bars: the scaled side draws count per unit, so the area is the
+    # count, and its axis says so (issue 8, item 11); the original side keeps counts.
+    assert height == pytest.approx(hist.counts[i] / (edges[i + 1] - edges[i]))
+    assert h.scaled.plot.getAxis("left").labelText == "count per unit (bars differ in width)"
+    assert h.original.plot.getAxis("left").labelText == "count"
     assert f"{int(hist.counts[i]):,} values" in h.info.text()
     # and from the scaled side: the twin on the original side lights up
     move_mouse(h.scaled.widget, (edges[i + 2] + edges[i + 3]) / 2, 1)
@@ -818,17 +850,33 @@ def test_writing_waits_for_fits_still_running(qtbot, window, big_table, tmp_path
 def test_export_uses_the_file_type_chosen_in_the_dialog(
     qtbot, opened, tmp_path, wait_job, monkeypatch
 ):
-    from scalewright.gui import main_window
+    from scalewright.gui import file_dialogs
 
     w = opened
     click_row(qtbot, w, "yield_kg")
     choose_method(w, "zscore")
     monkeypatch.setattr(
-        main_window.QFileDialog,
-        "getSaveFileName",
+        file_dialogs,
+        "save_file_name",
         lambda *a, **k: (str(tmp_path / "scaled"), "Comma-separated text (*.csv)"),
     )
     w.act_export.trigger()
     wait_job(w)
     assert (tmp_path / "scaled.csv").is_file()
     assert not (tmp_path / "scaled.xlsx").exists()
+
+
+def test_file_dialogs_open_readable_and_remember_their_size(qtbot, qapp):
+    """Issue 8, item 7: open and save dialogs large enough to read, their size kept."""
+    from PySide6.QtCore import QSettings
+
+    from scalewright.gui import file_dialogs
+
+    QSettings().remove(file_dialogs.SETTINGS_KEY)
+    d = file_dialogs.make_dialog(None, "Open data", "", "Data files (*.csv)", save=False)
+    assert (d.width(), d.height()) == file_dialogs.DEFAULT_SIZE
+    d.resize(760, 560)  # within the offscreen screen (800 x 600), which restoring respects
+    file_dialogs.remember(d)
+    again = file_dialogs.make_dialog(None, "Save as", "", "Workbook (*.xlsx)", save=True)
+    assert (again.width(), again.height()) == (760, 560)
+    QSettings().remove(file_dialogs.SETTINGS_KEY)

@@ -39,6 +39,19 @@ def fmt(v: float) -> str:
 
 
 FIGURE_LINES = 4
+COUNT_PER_UNIT = "count per unit (bars differ in width)"
+
+
+def bar_heights(x0: np.ndarray, x1: np.ndarray, counts: np.ndarray, valid: np.ndarray):
+    """What to draw: the counts when the bars are equally wide, else count per unit of
+    width, so that a bar's area, not its height, is its number of values and a widened
+    bar does not look larger than it is. Returns ``counts`` itself when unchanged."""
+    widths = (x1 - x0)[valid]
+    if widths.size == 0 or np.all(np.abs(widths - widths[0]) <= 1e-9 * abs(widths[0])):
+        return counts
+    with np.errstate(divide="ignore", invalid="ignore"):
+        heights = np.where(valid & (x1 > x0), counts / (x1 - x0), 0.0)
+    return heights
 
 
 def figures_text(f: Figures | None) -> str:
@@ -66,6 +79,7 @@ class _Side:
         self.plot.setMouseEnabled(x=False, y=False)
         self.plot.showGrid(x=False, y=True, alpha=0.15)
         self.plot.setLabel("left", "count")
+        self._left_title = "count"
         self.title = title
         self.colour = colour
         self.bars = pg.BarGraphItem(
@@ -89,6 +103,7 @@ class _Side:
         self.x0 = np.zeros(0)
         self.x1 = np.zeros(0)
         self.counts = np.zeros(0)
+        self.heights = self.counts  # as drawn: the counts, or counts per unit of width
         self.valid = np.zeros(0, dtype=bool)
         self.figures = QLabel("")
         self.figures.setProperty("role", "hint")
@@ -113,8 +128,13 @@ class _Side:
         x0, x1 = edges[:-1], edges[1:]
         valid = np.isfinite(x0) & np.isfinite(x1)
         self.x0, self.x1, self.counts, self.valid = x0, x1, counts, valid
+        self.heights = bar_heights(x0, x1, counts, valid)
+        left = COUNT_PER_UNIT if self.heights is not counts else "count"
+        if left != self._left_title:  # set only when it changes: setting it lays out anew
+            self._left_title = left
+            self.plot.setLabel("left", left)
         if valid.any():
-            self.bars.setOpts(x0=x0[valid], x1=x1[valid], height=counts[valid])
+            self.bars.setOpts(x0=x0[valid], x1=x1[valid], height=self.heights[valid])
             self.bars.setVisible(True)
             self.plot.enableAutoRange()
         else:
@@ -134,7 +154,7 @@ class _Side:
         if i is None or not (0 <= i < len(self.valid)) or not self.valid[i]:
             self.hover.setVisible(False)
             return
-        self.hover.setOpts(x0=[self.x0[i]], x1=[self.x1[i]], height=[self.counts[i]])
+        self.hover.setOpts(x0=[self.x0[i]], x1=[self.x1[i]], height=[self.heights[i]])
         self.hover.setVisible(True)
 
     def hovered_bar(self) -> tuple[float, float, float] | None:
@@ -255,6 +275,9 @@ class HistogramPanel(QWidget):
         self.original_title.setText(f"<b style='color:{theme.ORIGINAL}'>\u25a0</b> Original units")
         self.original.figures.setText(figures_text(s.figures(label)))
         self.original.set_axis_title(s.header(label))
+        # No readout of another column's bar or range survives the switch.
+        self.range = None
+        self.info.setText(" ")
         self._draw_scaled()
         if self.range_button.isChecked():
             self._reset_range()

@@ -20,7 +20,6 @@ from PySide6.QtCore import QByteArray, QSettings, Qt, QTimer, Signal
 from PySide6.QtGui import QAction, QCloseEvent, QIcon, QKeySequence, QUndoStack
 from PySide6.QtWidgets import (
     QDockWidget,
-    QFileDialog,
     QLabel,
     QMainWindow,
     QMessageBox,
@@ -37,7 +36,7 @@ from .. import io as swio
 from ..engine import METHODS
 from ..errors import Cancelled, ScalewrightError
 from ..project import load_project, locate_source, save_project
-from . import commands, report_action, theme
+from . import commands, file_dialogs, report_action, theme
 from .apply_dialog import ApplyDialog
 from .column_list import ColumnList
 from .errors import show_error
@@ -55,7 +54,7 @@ READ_SUFFIXES = tuple(swio.SUPPORTED_READ)
 DATA_FILTER = READ_FILTER
 PROJECT_FILTER = f"Scalewright projects (*{PROJECT_SUFFIX})"
 PROJECT_OR_WORKBOOK_FILTER = f"Projects or scaled workbooks (*{PROJECT_SUFFIX} *.xlsx)"
-EXPORT_FILTER = WRITE_FILTER.replace("Excel workbook (", "Excel workbook with parameters (")
+EXPORT_FILTER = WRITE_FILTER.replace("Workbook (", "Workbook with parameters (")
 MAX_RECENT = 8
 
 
@@ -415,12 +414,12 @@ class MainWindow(QMainWindow):
     # ================================================================== questions (replaced in tests)
 
     def ask_open_path(self, title: str, filter_: str) -> str | None:
-        path, _ = QFileDialog.getOpenFileName(self, title, self._last_dir(), filter_)
+        path, _ = file_dialogs.open_file_name(self, title, self._last_dir(), filter_)
         return path or None
 
     def ask_save_path(self, title: str, filter_: str, suggested: str = "") -> str | None:
         start = str(Path(self._last_dir()) / suggested) if suggested else self._last_dir()
-        path, chosen = QFileDialog.getSaveFileName(self, title, start, filter_)
+        path, chosen = file_dialogs.save_file_name(self, title, start, filter_)
         if path and any(f"*{s}" in chosen for s in WRITE_TYPES):
             path = str(with_chosen_type(path, chosen))  # the type chosen sets the ending
         return path or None

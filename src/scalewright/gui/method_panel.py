@@ -28,22 +28,6 @@ from ..errors import ScalewrightError
 from . import commands, theme
 from .state import FIT_WHERE_KINDS, Session
 
-# Plain words for each option (the engine's option names stay the stored names).
-OPTION_LABELS = {
-    ("minmax", "low"): "Smallest becomes",
-    ("minmax", "high"): "Largest becomes",
-    ("zscore", "sd"): "Standard deviation",
-    ("log", "base"): "Logarithm base",
-    ("boxcox", "standardize"): "Standardize afterwards (mean 0, sd 1)",
-    ("yeojohnson", "standardize"): "Standardize afterwards (mean 0, sd 1)",
-}
-CHOICE_LABELS = {
-    ("sd", "sample"): "sample (divide by n \u2212 1)",
-    ("sd", "population"): "population (divide by n)",
-    ("base", "e"): "e (natural logarithm)",
-    ("base", "10"): "10",
-    ("base", "2"): "2",
-}
 ALL_ROWS = "all rows"
 NO_GROUPS = "no groups"
 MAX_FIT_VALUES = 50  # columns with more different values are not offered for choosing rows
@@ -126,6 +110,8 @@ class MethodPanel(QWidget):
         suggest_row.addStretch(1)
         outer.addLayout(suggest_row)
         self.reason = _label("", "hint")
+        # (selected labels, their choices) when Suggest last filled in the reasons.
+        self._suggested: tuple[list[str], dict] | None = None
         self.reason.setToolTip("Why the suggested method was chosen")
         outer.addWidget(self.reason)
 
@@ -196,6 +182,17 @@ class MethodPanel(QWidget):
         if set(labels) & set(self.session.selection):
             self.refresh()
 
+    def _forget_stale_reasons(self) -> None:
+        """Suggest's reasons hold only while the same columns are selected and still have
+        the suggested choices: an undo, another method or another selection clears them."""
+        if self._suggested is None:
+            return
+        labels, choices = self._suggested
+        current = {label: self.session.choice(label) for label in choices}
+        if list(self.labels) != labels or current != choices:
+            self._suggested = None
+            self.reason.setText("")
+
     def _on_fitted(self, label: str) -> None:
         if label in self.session.selection:
             self._show_fit(self.labels)
@@ -246,6 +243,7 @@ class MethodPanel(QWidget):
 
     def refresh(self) -> None:
         """Show the selected columns' method, options, fitted values and warnings."""
+        self._forget_stale_reasons()
         s = self.session
         labels = self.labels
         has = bool(labels)
@@ -364,7 +362,7 @@ class MethodPanel(QWidget):
         for spec in method.option_specs:
             widget = self._option_widget(method.id, spec)
             widgets[spec.name] = widget
-            text = OPTION_LABELS.get((method.id, spec.name), spec.name)
+            text = spec.shown_label
             if isinstance(widget, QCheckBox):
                 widget.setText(text)
                 form.addRow(widget)
@@ -394,7 +392,7 @@ class MethodPanel(QWidget):
         else:
             w = QComboBox()
             for choice in spec.choices:
-                w.addItem(CHOICE_LABELS.get((name, choice), choice), choice)
+                w.addItem(spec.choice_words(choice), choice)
             w.activated.connect(lambda _i, n=name, box=w: self._on_option(n, box.currentData()))
         w.setToolTip(spec.help[:1].upper() + spec.help[1:])
         return w
@@ -421,6 +419,7 @@ class MethodPanel(QWidget):
     def suggest(self) -> dict[str, str]:
         """Give the selected columns the engine's suggestion, and say why."""
         reasons = commands.apply_suggestions(self.stack, self.session, self.labels)
+        self._suggested = (list(self.labels), {k: self.session.choice(k) for k in reasons})
         if len(reasons) == 1:
             text = "Suggested because the column is " + next(iter(reasons.values())) + "."
         else:
