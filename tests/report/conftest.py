@@ -2,38 +2,11 @@
 
 from __future__ import annotations
 
-import shutil
-
 import pytest
+from report_helpers import EVERY_METHOD, fit_and_save
 
-from scalewright import tasks
 from scalewright.engine import ColumnChoice, FitSettings
-from scalewright.io import read_table
-from scalewright.project import load_project, save_project
-from support import SAMPLE_DATA
-
-# One column per method, so that every formula to reverse appears in one report.
-EVERY_METHOD = {
-    "tree_age_years": ColumnChoice("decimal"),
-    "trunk_girth_cm": ColumnChoice("robust"),
-    "yield_kg": ColumnChoice("boxcox", {"standardize": True}),
-    "fruit_count": ColumnChoice("zscore"),
-    "sugar_brix": ColumnChoice("minmax", {"low": -1, "high": 1}),
-    "irrigation_l_per_week": ColumnChoice("log", {"base": "10"}),
-    "pest_trap_count": ColumnChoice("yeojohnson"),
-    "soil_ph": ColumnChoice("maxabs"),
-    "orchard": ColumnChoice("none"),
-}
-
-
-def fit_and_save(folder, choices, settings):
-    data = folder / "harvest_2025.csv"
-    shutil.copyfile(SAMPLE_DATA / "harvest_2025.csv", data)
-    table = read_table(data)
-    project = tasks.fit_project(table, choices, settings)
-    path = folder / "harvest.swproj"
-    save_project(project, path)
-    return path, data
+from scalewright.project import load_project
 
 
 @pytest.fixture

@@ -13,6 +13,7 @@ import numpy as np
 import pandas as pd
 import pytest
 import scipy.stats
+from report_helpers import fit_and_save
 
 from scalewright import tasks
 from scalewright.engine import ColumnChoice, FitSettings, column_values, histogram
@@ -100,8 +101,14 @@ def test_every_fitted_column_with_the_projects_exact_parameters(every_method):
 def test_rounded_values_are_the_exact_ones_rounded(every_method):
     path, _data, project = every_method
     report = build_report(project, path)
-    rounded = [r for s in report.columns for r in s.parameters if r.exact != r.shown]
-    assert rounded, "some parameter needs more than 6 digits"
+    number = re.compile(r"-?\d[\d.e+-]*")
+    rounded = [
+        r
+        for s in report.columns
+        for r in s.parameters
+        if number.fullmatch(r.shown) and r.exact != r.shown
+    ]
+    assert len(rounded) >= len(report.columns), "parameters need more than 6 digits"
     for row in rounded:
         assert float(row.shown) == pytest.approx(float(row.exact), rel=1e-5)
     assert "rounded to 6 significant digits" in report.rounding_note
@@ -270,3 +277,43 @@ def test_unfitted_project_is_refused(every_method, tmp_path):
 
     with pytest.raises(ProjectError, match="no fitted parameters"):
         build_report(Project(), None)
+
+
+@pytest.mark.parametrize("shape", ["uniform", "normal"])
+def test_quantile_lists_every_fitted_quantile_and_the_recipe_reverses(tmp_path, shape):
+    path, _data = fit_and_save(
+        tmp_path, {"yield_kg": ColumnChoice("quantile", {"shape": shape})}, FitSettings()
+    )
+    project = load_project(path)
+    fc = project.plan["yield_kg"]
+    report = build_report(project, path)
+    [section] = report.columns
+    [(title, numbers)] = section.number_lists
+    listed = [float(v) for v in numbers.split(", ")]
+    assert listed == fc.pooled.params["quantiles"]  # every one, bit for bit
+    assert "listed below" in dict((r.name, r.exact) for r in section.parameters)["fitted quantiles"]
+    html = render_html(report)
+    assert numbers in html
+    # follow the written recipe with the listed numbers (scipy's normal distribution for
+    # the normal shape) and compare with the engine's inverse
+    [(_group, recipe)] = section.reverse
+    n = len(listed)
+    assert f"u * {n - 1}" in recipe and f"the {n} fitted quantiles" in recipe
+    y = np.array([0.0, 0.1234, 0.5, 0.87, 1.0]) if shape == "uniform" else np.array([-2, 0, 1.5])
+    u = y if shape == "uniform" else scipy.stats.norm.cdf(y)
+    i = np.minimum(np.floor(u * (n - 1)).astype(int), n - 2)
+    q = np.array(listed)
+    by_recipe = q[i] + (u * (n - 1) - i) * (q[i + 1] - q[i])
+    np.testing.assert_allclose(by_recipe, fc.inverse(y), rtol=1e-12)
+
+
+def test_bars_of_unequal_width_are_drawn_per_unit(every_method):
+    path, _data, project = every_method
+    report = build_report(project, path)
+    by_label = {s.label: s for s in report.columns}
+    pests = by_label["pest_trap_count"]  # Yeo-Johnson: widths change
+    assert "count per unit" in pests.figures_note
+    assert "count per unit" in pests.figures[1].svg
+    assert "count per unit" not in pests.figures[0].svg
+    ages = by_label["tree_age_years"]  # decimal scaling, a straight line: equal widths
+    assert "count per unit" not in ages.figures_note + ages.figures[1].svg

@@ -21,7 +21,17 @@ from typing import Any
 import numpy as np
 
 from .. import __version__
-from ..engine import FittedColumn, ParamSet, column_values, get_method, histogram, mapped_edges
+from ..engine import (
+    FittedColumn,
+    Method,
+    ParamSet,
+    column_values,
+    format_number,
+    get_method,
+    histogram,
+    mapped_edges,
+)
+from ..engine.method_base import LinearMethod, Steps
 from ..errors import Cancelled, ProjectError, ScalewrightError
 from ..io import ReadOptions, Table, read_table
 from ..project import ALL_ROWS, UNSEEN_GROUPS, Project, locate_source, now_iso, options_text
@@ -82,6 +92,7 @@ class ColumnSection:
     values_fitted: int  # on all fitted rows (every group together)
     fit_summary: list[str]
     parameters: list[ParameterRow]
+    number_lists: list[tuple[str, str]]  # (title, numbers at full precision) for list parameters
     formula: str  # the method's formula to reverse, in parameter names
     reverse: list[tuple[str, str]]  # (parameter set, formula with the fitted numbers)
     warnings: list[str]
@@ -105,55 +116,11 @@ class Report:
 # =========================================================================== words
 
 
-# The engine's parameter names in words (as the apply and restore dialogs say them), and
-# switches said as what they mean. One place for the report; see describe_parameters.
-_PARAMETER_WORDS = {
-    "min": "smallest fitted value",
-    "max": "largest fitted value",
-    "low": "smallest becomes",
-    "high": "largest becomes",
-    "mean": "mean",
-    "sd": "sd",
-    "median": "median",
-    "q1": "first quartile",
-    "q3": "third quartile",
-    "scale": "spread (q3 - q1)",
-    "maxabs": "largest size",
-    "j": "divided by 10 to the power",
-    "shift": "added first",
-    "base": "logarithm base",
-    "quantile_rule": "quartiles by",
-    "lambda": "lambda",
-}
-_PARAMETER_SAYINGS = {
-    ("ddof", 1): ("sd divided by", "n - 1 (sample sd)"),
-    ("ddof", 0): ("sd divided by", "n (population sd)"),
-    ("standardize", True): ("standardized afterwards", "yes (mean 0, sd 1)"),
-    ("standardize", False): ("standardized afterwards", "no"),
-}
-
-
-def describe_parameters(method_id: str, params: Mapping[str, Any]) -> list[tuple[str, Any]]:
-    """A parameter set in plain words: [(name in words, raw value or words)], in order."""
-    out: list[tuple[str, Any]] = []
-    for key, value in params.items():
-        said = _PARAMETER_SAYINGS.get((key, value)) if not isinstance(value, float) else None
-        if said is not None:
-            out.append(said)
-        else:
-            out.append((_PARAMETER_WORDS.get(key, key), value))
-    return out
-
-
 def shown_value(value: Any) -> str:
-    """A value rounded for reading."""
-    if isinstance(value, bool):
-        return "yes" if value else "no"
-    if isinstance(value, float):
-        return f"{value:.{SHOWN_DIGITS}g}"
-    if isinstance(value, int):
-        return f"{value}"
-    return str(value)
+    """A value rounded for reading (the engine's number format, at 6 digits)."""
+    if isinstance(value, str):
+        return value
+    return format_number(value, SHOWN_DIGITS)
 
 
 def exact_value(value: Any) -> str:
@@ -171,25 +138,31 @@ def _num(value: float) -> str:
     return f"({text})" if text.startswith("-") else text
 
 
+def _straight_line(steps: Steps) -> str:
+    """``x`` from ``y`` for ``y = ((x - subtract) / divide) * multiply + add``, skipping the
+    steps that do nothing, as the engine's inverse does."""
+    if steps.divide == 0:  # a constant column: every value became ``add``
+        return f"x = {_num(steps.subtract)}"
+    text = "y"
+    if steps.add != 0.0:
+        text = f"(y - {_num(steps.add)})"
+    if steps.multiply != 1.0:
+        text = f"{text} / {_num(steps.multiply)}"
+    if steps.divide != 1.0:
+        text = f"{text} * {_num(steps.divide)}"
+    if steps.subtract != 0.0:
+        text = f"{text} + {_num(steps.subtract)}"
+    if text.startswith("(y - ") and text.endswith(")"):
+        text = text[1:-1]
+    return f"x = {text}"
+
+
 def reverse_formula(method_id: str, params: Mapping[str, Any]) -> str:
     """The formula to turn a scaled value y back into x, with the fitted numbers in place."""
+    method = get_method(method_id)
     p = params
-    if method_id == "minmax":
-        lo, hi, low, high = p["min"], p["max"], p["low"], p["high"]
-        if (low, high) == (0.0, 1.0):
-            return f"x = y * ({_num(hi)} - {_num(lo)}) + {_num(lo)}"
-        return (
-            f"x = (y - {_num(low)}) / ({_num(high)} - {_num(low)}) * ({_num(hi)} - {_num(lo)})"
-            f" + {_num(lo)}"
-        )
-    if method_id == "zscore":
-        return f"x = y * {_num(p['sd'])} + {_num(p['mean'])}"
-    if method_id == "robust":
-        return f"x = y * {_num(p['scale'])} + {_num(p['median'])}"
-    if method_id == "maxabs":
-        return f"x = y * {_num(p['maxabs'])}"
-    if method_id == "decimal":
-        return f"x = y * 10^{_num(int(p['j']))}"
+    if isinstance(method, LinearMethod):
+        return _straight_line(method.steps(p))
     if method_id == "log":
         power = "exp(y)" if p["base"] == "e" else f"{p['base']}^y"
         return f"x = {power} - {_num(p['shift'])}" if p["shift"] else f"x = {power}"
@@ -206,6 +179,14 @@ def reverse_formula(method_id: str, params: Mapping[str, Any]) -> str:
             f"1 - exp(-{y})" if rest == 0.0 else f"1 - (1 - {_num(rest)} * {y})^(1 / {_num(rest)})"
         )
         return f"where {y} >= 0: x = {up}; where {y} < 0: x = {down}"
+    if method_id == "quantile":
+        n = len(p["quantiles"])
+        rank = "u = y" if p["shape"] == "uniform" else "u = the standard normal probability of y"
+        return (
+            f"{rank}; then x = quantile[i] + (u * {n - 1} - i) * (quantile[i+1] - quantile[i]) "
+            f"with i = the whole part of u * {n - 1}, using the {n} fitted quantiles listed below "
+            "(quantile[0] first)"
+        )
     return "x = y"
 
 
@@ -326,13 +307,27 @@ def _column_cautions(fc: FittedColumn) -> list[str]:
     return cautions
 
 
-def _parameters(fc: FittedColumn, sets: Sequence[tuple[str, ParamSet]]) -> list[ParameterRow]:
-    rows = []
+def _parameters(
+    method: Method, sets: Sequence[tuple[str, ParamSet]]
+) -> tuple[list[ParameterRow], list[tuple[str, str]]]:
+    """The parameter table in the method's own words, and every list of numbers in full
+    (the quantile method's fitted quantiles): [(title, the numbers)]."""
+    rows, lists = [], []
     for group, ps in sets:
-        described = describe_parameters(fc.method, ps.params)
-        for name, value in described:
-            rows.append(ParameterRow(group, name, shown_value(value), exact_value(value)))
-    return rows
+        for spec in method.params_present(ps.params):
+            if spec.name not in ps.params:
+                continue
+            value = ps.params[spec.name]
+            shown = spec.says(value) if spec.says is not None else shown_value(value)
+            if isinstance(value, list):
+                exact = f"all {len(value):,} listed below"
+                title = spec.label[:1].upper() + spec.label[1:]
+                title += f" ({group}), exact, in order" if len(sets) > 1 else ", exact, in order"
+                lists.append((title, ", ".join(repr(float(v)) for v in value)))
+            else:
+                exact = exact_value(value)
+            rows.append(ParameterRow(group, spec.label, shown, exact))
+    return rows, lists
 
 
 def _figures(
@@ -369,6 +364,12 @@ def _figures(
         f"Every row's value ({n:,} values, blanks left out) in {len(h.counts)} bars; the "
         "scaled side is the same bars on edges mapped through the transform."
     ]
+    usable = np.isfinite(scaled[:-1]) & np.isfinite(scaled[1:])
+    if svg.bar_heights(scaled, h.counts, usable)[1]:
+        notes.append(
+            "The transform makes the scaled bars differ in width, so their height there is "
+            "the count per unit of width: a bar's area is its number of values."
+        )
     settings = project.plan.settings if project.plan else None
     if fc.groups and settings is not None:
         notes.append(
@@ -378,7 +379,7 @@ def _figures(
     elif settings is not None and settings.fit_where is not None:
         col, val = settings.fit_where
         notes.append(f"Fitted on the rows where {col} is {val}; shown for every row.")
-    lost = ~(np.isfinite(scaled[:-1]) & np.isfinite(scaled[1:])) & (h.counts > 0)
+    lost = ~usable & (h.counts > 0)
     if lost.any():
         notes.append(
             f"{_count(int(h.counts[lost].sum()), 'value')} in {_count(int(lost.sum()), 'bar')} "
@@ -393,6 +394,7 @@ def _column(
     method = get_method(fc.method)
     header = _header_of(project, fc.column)
     sets = _param_sets(project, fc)
+    parameters, number_lists = _parameters(method, sets)
     figures: list[Figure] = []
     note = ""
     missing = data_problem
@@ -412,7 +414,8 @@ def _column(
         options=options_text(fc.options) or "none",
         values_fitted=fc.pooled.n,
         fit_summary=_fit_summary(project, fc),
-        parameters=_parameters(fc, sets),
+        parameters=parameters,
+        number_lists=number_lists,
         formula=method.inverse_formula,
         reverse=[(group, reverse_formula(fc.method, ps.params)) for group, ps in sets],
         warnings=[str(w) for w in fc.warnings],

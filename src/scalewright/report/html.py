@@ -34,6 +34,7 @@ code, .exact { font-family: 'DejaVu Sans Mono', Consolas, monospace; font-size: 
 .exact { white-space: nowrap; }
 p.formula { font-family: 'DejaVu Sans Mono', Consolas, monospace; font-size: 9pt;
             background-color: #f6f6f4; padding: 4px; margin: 2px 0; }
+p.numbers { font-family: 'DejaVu Sans Mono', Consolas, monospace; font-size: 8pt; }
 .note { color: #555555; font-size: 9pt; }
 .warning { color: #a04000; }
 .missing { color: #a04000; font-weight: bold; }
@@ -84,6 +85,8 @@ def _column(section: ColumnSection, index: int, image: ImageMarkup) -> str:
         )
     out.append("</table>")
     out.append('<p class="note">Rounded for reading; use the exact values.</p>')
+    for title, numbers in section.number_lists:
+        out.append(f'<p class="note">{_e(title)}:</p><p class="numbers">{_e(numbers)}</p>')
     out.append("<h3>To reverse (x = original, y = scaled)</h3>")
     out.append(
         f"<p>The method's formula: <code>{_e(section.formula)}</code>. With the fitted numbers:</p>"

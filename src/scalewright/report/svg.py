@@ -20,9 +20,10 @@ SCALED = "#E69F00"
 AXIS = "#444444"
 GRID = "#e4e4e4"
 FONT = "DejaVu Sans, Arial, Helvetica, sans-serif"
+COUNT_PER_UNIT = "count per unit (bars differ in width)"  # the window's words
 
 WIDTH = 460
-HEIGHT = 250
+HEIGHT = 260
 _LEFT, _RIGHT, _TOP, _BOTTOM = 58, 14, 12, 46
 
 
@@ -42,10 +43,24 @@ def nice_ticks(lo: float, hi: float, target: int = 5) -> list[float]:
     return [k * step for k in range(first, last + 1)]
 
 
-def tick_text(value: float) -> str:
-    """A short label for an axis tick (no '-0')."""
+def tick_text(value: float, *, grouped: bool = False) -> str:
+    """A short label for an axis tick (no '-0'); ``grouped`` whole numbers get commas."""
+    if grouped and value == int(value) and abs(value) < 1e15:
+        return f"{int(value):,}"
     text = f"{value:.4g}"
     return "0" if text in ("-0", "0") else text
+
+
+def bar_heights(edges: np.ndarray, counts: np.ndarray, usable: np.ndarray):
+    """(heights, per_unit): the counts when the bars are equally wide, else the count per
+    unit of width, so that a bar's area is its number of values and a bar widened by the
+    transform does not look larger than it is (the window's rule, gui/histograms.py)."""
+    widths = (edges[1:] - edges[:-1])[usable]
+    if widths.size == 0 or np.all(np.abs(widths - widths[0]) <= 1e-9 * abs(widths[0])):
+        return counts.astype(np.float64), False
+    with np.errstate(divide="ignore", invalid="ignore"):
+        x0, x1 = edges[:-1], edges[1:]
+        return np.where(usable & (x1 > x0), counts / (x1 - x0), 0.0), True
 
 
 def _fmt(v: float) -> str:
@@ -74,8 +89,10 @@ def histogram_svg(
     hi = float(finite_edges.max()) if finite_edges.size else 1.0
     if not hi > lo:  # one value (a constant column scaled to 0): give it a visible width
         lo, hi = lo - 0.5, hi + 0.5
-    top = int(counts[usable].max()) if usable.any() else 0
-    top = max(top, 1)
+    heights, per_unit = bar_heights(edges, counts, usable)
+    top = float(heights[usable].max()) if usable.any() else 0.0
+    if not top > 0:
+        top = 1.0
 
     plot_w = width - _LEFT - _RIGHT
     plot_h = height - _TOP - _BOTTOM
@@ -93,7 +110,9 @@ def histogram_svg(
         f"<title>{escape(description or axis_title)}</title>",
         f'<rect x="0" y="0" width="{width}" height="{height}" fill="#ffffff"/>',
     ]
-    y_ticks = [t for t in nice_ticks(0.0, float(top), 4) if t == int(t)]
+    y_ticks = nice_ticks(0.0, top, 4)
+    if not per_unit:
+        y_ticks = [t for t in y_ticks if t == int(t)]
     for t in y_ticks:
         y = _fmt(sy(t))
         parts.append(
@@ -102,12 +121,12 @@ def histogram_svg(
         )
         parts.append(
             f'<text x="{_LEFT - 6}" y="{_fmt(sy(t) + 4)}" text-anchor="end" '
-            f'font-family="{FONT}" font-size="11" fill="{AXIS}">{int(t):,}</text>'
+            f'font-family="{FONT}" font-size="11" fill="{AXIS}">{tick_text(t, grouped=True)}</text>'
         )
     parts.append(f'<g class="bars" fill="{colour}" stroke="#ffffff" stroke-width="0.5">')
     for i in np.flatnonzero(usable & (counts > 0)):
         x0, x1 = sx(float(edges[i])), sx(float(edges[i + 1]))
-        y = sy(float(counts[i]))
+        y = sy(float(heights[i]))
         parts.append(
             f'<rect x="{_fmt(x0)}" y="{_fmt(y)}" width="{_fmt(max(x1 - x0, 1.0))}" '
             f'height="{_fmt(max(bottom_y - y, 0.5))}"><title>{int(counts[i]):,} values from '
@@ -138,8 +157,8 @@ def histogram_svg(
     )
     parts.append(
         f'<text x="14" y="{_TOP + plot_h / 2:.1f}" text-anchor="middle" font-family="{FONT}" '
-        f'font-size="11" fill="{AXIS}" transform="rotate(-90 14 {_TOP + plot_h / 2:.1f})">'
-        "values</text>"
+        f'font-size="{9 if per_unit else 11}" fill="{AXIS}" transform="rotate(-90 14 {_TOP + plot_h / 2:.1f})">'
+        f"{COUNT_PER_UNIT if per_unit else 'count'}</text>"
     )
     parts.append("</svg>")
     return "".join(parts)
