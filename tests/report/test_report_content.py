@@ -58,6 +58,10 @@ def svgs(html: str) -> list[ET.Element]:
 def evaluate(formula: str, y: float) -> float:
     """A reverse formula evaluated as a person would type it ('^' is a power)."""
     env = {"exp": math.exp, "y": y}
+    if formula.startswith("y' = "):  # a first step: undo the standardizing
+        first, _, formula = formula.partition("; ")
+        env["yp"] = eval(first.removeprefix("y' = "), {"__builtins__": {}}, env)
+        formula = formula.replace("y'", "yp")
     if formula.startswith("where "):
         for branch in formula.split("; "):
             condition, _, expression = branch.removeprefix("where ").partition(": x = ")
@@ -165,6 +169,12 @@ def test_the_formulas_with_fitted_numbers_turn_scaled_values_back(every_method):
         ("yeojohnson", {"lambda": 0.0, "standardize": False}, math.log(3.0), 2.0),
         ("yeojohnson", {"lambda": 2.0, "standardize": False}, -math.log(3.0), -2.0),
         ("yeojohnson", {"lambda": 1.0, "standardize": False}, -2.0, -2.0),
+        (
+            "boxcox",
+            {"lambda": 0.0, "standardize": True, "mean": 1.0, "sd": 2.0, "ddof": 1},
+            0.5,
+            math.exp(2.0),
+        ),
     ],
 )
 def test_formula_edge_cases(method, params, y, x):

@@ -168,17 +168,20 @@ def reverse_formula(method_id: str, params: Mapping[str, Any]) -> str:
         return f"x = {power} - {_num(p['shift'])}" if p["shift"] else f"x = {power}"
     if method_id in ("boxcox", "yeojohnson"):
         lam = float(p["lambda"])
-        y = f"(y * {_num(p['sd'])} + {_num(p['mean'])})" if p.get("standardize") else "y"
+        # Standardized: first undo the standardizing (y'), then the power transform.
+        first, y = "", "y"
+        if p.get("standardize"):
+            first, y = f"y' = y * {_num(p['sd'])} + {_num(p['mean'])}; ", "y'"
         if method_id == "boxcox":
             if lam == 0.0:
-                return f"x = exp({y})"
-            return f"x = ({_num(lam)} * {y} + 1)^(1 / {_num(lam)})"
+                return f"{first}x = exp({y})"
+            return f"{first}x = ({_num(lam)} * {y} + 1)^(1 / {_num(lam)})"
         up = f"exp({y}) - 1" if lam == 0.0 else f"({_num(lam)} * {y} + 1)^(1 / {_num(lam)}) - 1"
         rest = 2.0 - lam
         down = (
             f"1 - exp(-{y})" if rest == 0.0 else f"1 - (1 - {_num(rest)} * {y})^(1 / {_num(rest)})"
         )
-        return f"where {y} >= 0: x = {up}; where {y} < 0: x = {down}"
+        return f"{first}where {y} >= 0: x = {up}; where {y} < 0: x = {down}"
     if method_id == "quantile":
         n = len(p["quantiles"])
         rank = "u = y" if p["shape"] == "uniform" else "u = the standard normal probability of y"
@@ -360,25 +363,19 @@ def _figures(
             ),
         ),
     ]
-    notes = [
-        f"Every row's value ({n:,} values, blanks left out) in {len(h.counts)} bars; the "
-        "scaled side is the same bars on edges mapped through the transform."
-    ]
     usable = np.isfinite(scaled[:-1]) & np.isfinite(scaled[1:])
-    if svg.bar_heights(scaled, h.counts, usable)[1]:
-        notes.append(
-            "The transform makes the scaled bars differ in width, so their height there is "
-            "the count per unit of width: a bar's area is its number of values."
-        )
+    per_unit = svg.bar_heights(scaled, h.counts, usable)[1]
+    notes = [
+        f"Every row's value, fitted or not ({n:,}, blanks left out), in {len(h.counts)} bars; the scaled side "
+        "is the same bars on edges mapped through the transform"
+        + (", as count per unit of width since they differ in width." if per_unit else ".")
+    ]
     settings = project.plan.settings if project.plan else None
     if fc.groups and settings is not None:
         notes.append(
             f"Fitted separately for each group of '{settings.group_by}'. The scaled "
             "histogram uses the parameters fitted on all rows, so it is a guide only."
         )
-    elif settings is not None and settings.fit_where is not None:
-        col, val = settings.fit_where
-        notes.append(f"Fitted on the rows where {col} is {val}; shown for every row.")
     lost = ~usable & (h.counts > 0)
     if lost.any():
         notes.append(

@@ -18,9 +18,10 @@ from .content import Figure, Report
 from .html import render_html
 from .svg import HEIGHT, WIDTH
 
-# Two histograms side by side must fit the width of an A4 page (Qt lays the page out at
-# 96 pixels per inch: about 680 pixels between 15 mm margins).
-PRINTED_WIDTH = 310
+# Two histograms side by side must fit the width of an A4 page: Qt lays the page out at
+# 96 pixels per inch, and QTextDocument.print_ keeps a 2 cm margin of its own (so the
+# writer is given none), which leaves about 640 pixels.
+PRINTED_WIDTH = 300
 SHARPNESS = 3  # images are drawn at this multiple of their printed size
 
 _app = None  # the QGuiApplication made here when the caller had none
@@ -91,7 +92,7 @@ def write_pdf(report: Report, target: str | os.PathLike) -> None:
         writer.setTitle(report.title)
         writer.setCreator("Scalewright")
         writer.setPageSize(QPageSize(QPageSize.PageSizeId.A4))
-        writer.setPageMargins(QMarginsF(15, 15, 15, 15), QPageLayout.Unit.Millimeter)
+        writer.setPageMargins(QMarginsF(0, 0, 0, 0), QPageLayout.Unit.Millimeter)  # see above
         document.print_(writer)
         del writer  # the file is complete once the writer is gone
         if not tmp.stat().st_size:
