@@ -16,7 +16,6 @@ from collections.abc import Callable, Sequence
 from pathlib import Path
 from typing import Any
 
-from . import __version__
 from .errors import ColumnError, OptionError, ReadError, ScalewrightError, WriteError
 
 PROG = "scalewright"
@@ -92,6 +91,23 @@ class _Parser(argparse.ArgumentParser):
         return super().format_help()
 
 
+class VersionAction(argparse.Action):
+    """``--version``: the version line, then the shipped libraries and their licences."""
+
+    def __init__(self, option_strings, dest=argparse.SUPPRESS, **kwargs) -> None:
+        super().__init__(option_strings, dest, nargs=0, default=argparse.SUPPRESS, **kwargs)
+
+    def __call__(self, parser, namespace, values, option_string=None) -> None:
+        from .about import version_text
+
+        try:
+            print(version_text(), flush=True)
+        except BrokenPipeError:  # piped into a program that stopped reading (| head -1)
+            with contextlib.suppress(OSError):
+                sys.stdout = open(os.devnull, "w")  # noqa: SIM115
+        parser.exit()
+
+
 def build_parser() -> argparse.ArgumentParser:
     parser = _Parser(
         prog=PROG,
@@ -99,7 +115,9 @@ def build_parser() -> argparse.ArgumentParser:
         formatter_class=argparse.RawDescriptionHelpFormatter,
         epilog="Run 'scalewright COMMAND --help' for the options and examples of a command.",
     )
-    parser.add_argument("--version", action="version", version=f"%(prog)s {__version__}")
+    parser.add_argument(
+        "--version", action=VersionAction, help="show the version and the libraries' licences"
+    )
     commands = parser.add_subparsers(dest="command", metavar="COMMAND")
 
     p = commands.add_parser(
@@ -111,6 +129,12 @@ def build_parser() -> argparse.ArgumentParser:
         formatter_class=argparse.RawDescriptionHelpFormatter,
     )
     p.add_argument("file", metavar="FILE", help="data file or project file")
+    p.add_argument(
+        "--check-and-quit",
+        action="store_true",
+        help="open FILE with the detected settings, print what was read and quit (to check "
+        "that an installed copy starts; status 1 if FILE could not be opened)",
+    )
 
     p = commands.add_parser(
         "fit",
@@ -381,7 +405,7 @@ def parse_mapping(pairs: Sequence[str], fitted: Sequence[str]) -> dict[str, str]
 # --------------------------------------------------------------------------- commands
 
 
-def _open_window(path: str | None) -> int:
+def _open_window(path: str | None, check_and_quit: bool = False) -> int:
     if path is not None and not Path(path).exists():
         raise ReadError(path, "there is no such file")
     try:
@@ -392,7 +416,7 @@ def _open_window(path: str | None) -> int:
                 "the window needs PySide6 (pip install PySide6-Essentials)"
             ) from None
         raise ScalewrightError(f"the window cannot start ({err})") from None
-    status = window_main(path=path)
+    status = window_main(path=path, check_and_quit=check_and_quit)
     return int(status or 0)
 
 
@@ -627,7 +651,7 @@ _COMMANDS: dict[str, Callable[[argparse.Namespace], int]] = {
     "restore": cmd_restore,
     "show": cmd_show,
     "report": cmd_report,
-    "open": lambda args: _open_window(args.file),
+    "open": lambda args: _open_window(args.file, args.check_and_quit),
 }
 
 

@@ -36,9 +36,16 @@ def make_app(argv: list[str] | None = None):
     return app
 
 
-def main(path: str | None = None) -> int:
-    """Open the window (on a data file or a .swproj if given) and run until it is closed."""
+def main(path: str | None = None, *, check_and_quit: bool = False) -> int:
+    """Open the window (on a data file or a .swproj if given) and run until it is closed.
+
+    With ``check_and_quit``, open the file, print what was read and quit (startup_check.py).
+    """
     app = make_app()
+    if check_and_quit:
+        from .startup_check import run_check
+
+        return run_check(app, path)
     from .main_window import MainWindow
 
     window = MainWindow()

@@ -39,7 +39,7 @@ def fmt(v: float) -> str:
 
 
 FIGURE_LINES = 4
-COUNT_PER_UNIT = "count per unit (bars differ in width)"
+COUNT_PER_UNIT = "count per unit of width"
 
 
 def bar_heights(x0: np.ndarray, x1: np.ndarray, counts: np.ndarray, valid: np.ndarray):

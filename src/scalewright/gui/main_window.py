@@ -19,6 +19,7 @@ from typing import Any
 from PySide6.QtCore import QByteArray, QSettings, Qt, QTimer, Signal
 from PySide6.QtGui import QAction, QCloseEvent, QIcon, QKeySequence, QUndoStack
 from PySide6.QtWidgets import (
+    QApplication,
     QDockWidget,
     QLabel,
     QMainWindow,
@@ -31,8 +32,8 @@ from PySide6.QtWidgets import (
     QWidget,
 )
 
-from .. import __version__, tasks
 from .. import io as swio
+from .. import tasks
 from ..engine import METHODS
 from ..errors import Cancelled, ScalewrightError
 from ..project import load_project, locate_source, save_project
@@ -86,7 +87,7 @@ class MainWindow(QMainWindow):
         self.restore_dialog = None
         self.setAcceptDrops(True)
         self.setWindowIcon(app_icon())
-        self.resize(1360, 860)
+        self._fit_to_screen(1360, 860)
 
         self.columns = ColumnList(self.session)
         self.method_panel = MethodPanel(self.session, self.stack)
@@ -129,7 +130,7 @@ class MainWindow(QMainWindow):
         self.main_split.setStretchFactor(0, 0)
         self.main_split.setStretchFactor(1, 1)
         self.main_split.setStretchFactor(2, 0)
-        self.main_split.setSizes([400, 680, 340])
+        self.main_split.setSizes([320, 700, 330])
         self.main_split.setChildrenCollapsible(False)
         self.setCentralWidget(self.main_split)
 
@@ -140,6 +141,8 @@ class MainWindow(QMainWindow):
         view.setToolTip("Every change to a choice; click a line to go back to it")
         self.history.setWidget(view)
         self.addDockWidget(Qt.DockWidgetArea.RightDockWidgetArea, self.history)
+        # Narrow when shown, so that opening it leaves the histograms room for their titles.
+        self.resizeDocks([self.history], [200], Qt.Orientation.Horizontal)
         self.history.hide()
 
         self.jobs = JobRunner(self)
@@ -932,16 +935,21 @@ class MainWindow(QMainWindow):
         self.last_message = box
 
     def show_about(self) -> None:
-        box = QMessageBox(self)
-        box.setWindowTitle("About Scalewright")
-        box.setText(
-            f"<b>Scalewright {__version__}</b><br>Scale the number columns of a table, keep "
-            "every fitted value in a project, and turn scaled values back into original units."
-        )
-        box.open()
-        self.last_message = box
+        from .about_dialog import AboutDialog
+
+        self.about_dialog = AboutDialog(self)
+        self.about_dialog.open()
 
     # ================================================================== geometry and closing
+
+    def _fit_to_screen(self, width: int, height: int) -> None:
+        """Open at the preferred size, but never larger than the screen's free area (a
+        1360 x 860 window on a 1280 x 800 screen put the method panel past its edge)."""
+        screen = self.screen() or QApplication.primaryScreen()
+        if screen is not None:
+            free = screen.availableGeometry()
+            width, height = min(width, free.width()), min(height, free.height() - 40)
+        self.resize(width, height)
 
     def _restore_geometry(self) -> None:
         geometry = self.settings.value("window/geometry")
