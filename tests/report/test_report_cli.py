@@ -3,6 +3,7 @@ refusals (another format, the project's own files) and no Qt for the HTML."""
 
 from __future__ import annotations
 
+import os
 import subprocess
 import sys
 import textwrap
@@ -126,3 +127,23 @@ def test_project_text_is_unchanged_by_reporting(every_method, tmp_path):
     before = project_to_json(project, path)
     main(["report", str(path), "-o", str(tmp_path / "r.html")])
     assert path.read_text(encoding="utf-8") == before
+
+
+def test_pdf_from_the_command_line_without_a_display(every_method, tmp_path):
+    # no display and no platform named: the PDF path picks Qt's offscreen platform itself
+    path, _data, _project = every_method
+    out = tmp_path / "report.pdf"
+    env = {k: v for k, v in os.environ.items() if k not in ("QT_QPA_PLATFORM", "DISPLAY")}
+    env.pop("WAYLAND_DISPLAY", None)
+    result = subprocess.run(
+        [sys.executable, "-m", "scalewright", "report", str(path), "-o", str(out)],
+        capture_output=True,
+        text=True,
+        timeout=300,
+        env=env,
+        check=False,
+    )
+    assert result.returncode == 0, result.stderr
+    assert result.stdout == f"report written to {out}\n"
+    assert out.read_bytes().startswith(b"%PDF-")
+    assert not [p.name for p in tmp_path.iterdir() if p.name.startswith(".report.pdf")]

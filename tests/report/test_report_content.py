@@ -285,7 +285,7 @@ def test_unfitted_project_is_refused(every_method, tmp_path):
     from scalewright.errors import ProjectError
     from scalewright.project import Project
 
-    with pytest.raises(ProjectError, match="no fitted parameters"):
+    with pytest.raises(ProjectError, match="no fitted parameters yet, so there is nothing"):
         build_report(Project(), None)
 
 

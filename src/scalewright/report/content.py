@@ -489,9 +489,10 @@ def build_report(
     ``table``, when given (the window's open data), is used for the histograms instead of
     reading the data file again, unless its fingerprint differs from the project's.
     """
-    if project.plan is None:
-        raise ProjectError("project", "has no fitted parameters yet; fit it first")
     path = Path(project_path) if project_path is not None else None
+    if project.plan is None:
+        where = path or project.loaded_from or "project"
+        raise ProjectError(where, "has no fitted parameters yet, so there is nothing to report")
     if table is not None:
         data, problem, state = table.data, "", "open in the window"
         if (
