@@ -327,3 +327,21 @@ def test_bars_of_unequal_width_are_drawn_per_unit(every_method):
     assert "count per unit" not in pests.figures[0].svg
     ages = by_label["tree_age_years"]  # decimal scaling, a straight line: equal widths
     assert "count per unit" not in ages.figures_note + ages.figures[1].svg
+
+
+def test_the_usual_cautions_are_stated(every_method):
+    # issue 10: re-apply, never refit; clipped values; shape on purpose; keep the project
+    path, _data, project = every_method
+    report = build_report(project, path)
+    said = " ".join(report.cautions)
+    for words in (
+        "never fit them again on the new data",
+        "cannot be restored exactly",
+        "change the shape of the distribution on purpose",
+        "keep the project file with the model it served",
+    ):
+        assert words in said
+    assert "Box-Cox" in said and "quantile" in said  # every method that is not a line
+    by_label = {s.label: s for s in report.columns}
+    assert any("shape" in c for c in by_label["yield_kg"].cautions)  # Box-Cox
+    assert not by_label["fruit_count"].cautions  # z-score: a straight line

@@ -22,6 +22,7 @@ import numpy as np
 
 from .. import __version__
 from ..engine import (
+    METHODS,
     FittedColumn,
     Method,
     ParamSet,
@@ -47,7 +48,17 @@ ROUNDING_NOTE = (
     "values (as stored in the project file) are in the last column, and the formulas to "
     "reverse use them: type those, not the rounded ones."
 )
-SHAPE_CHANGING = ("log", "boxcox", "yeojohnson")
+
+
+def _shape_caution() -> str:
+    """The general caution on shape, naming the methods that are not straight lines."""
+    names = [m.name for m in METHODS.values() if not m.linear]
+    listed = ", ".join(names[:-1]) + " and " + names[-1] if len(names) > 1 else names[0]
+    return (
+        f"{listed[:1].upper()}{listed[1:]} change the shape of the distribution on purpose; "
+        "the other methods only shift and stretch it."
+    )
+
 
 GENERAL_CAUTIONS = (
     "The parameters were fitted on the rows stated in this report. To scale new data, "
@@ -55,8 +66,7 @@ GENERAL_CAUTIONS = (
     "them again on the new data, or the model would receive values on another scale.",
     "Values clipped into the fitted range when the parameters were applied cannot be "
     "restored exactly: restoring gives the end of the range, not the value that was there.",
-    "Logarithm, Box-Cox and Yeo-Johnson change the shape of the distribution on purpose; "
-    "the other methods only shift and stretch it.",
+    _shape_caution(),
     "Scaled results feed decisions: keep the project file with the model it served, so that "
     "its inputs can be made again and its answers turned back into original units.",
 )
@@ -297,7 +307,7 @@ def _fit_summary(project: Project, fc: FittedColumn) -> list[str]:
 
 def _column_cautions(fc: FittedColumn) -> list[str]:
     cautions = []
-    if fc.method in SHAPE_CHANGING:
+    if not get_method(fc.method).linear:
         cautions.append(
             "This method changes the shape of the distribution on purpose (compare the two "
             "histograms): equal steps in scaled units are not equal steps in original units."
@@ -306,6 +316,11 @@ def _column_cautions(fc: FittedColumn) -> list[str]:
         cautions.append(
             "Some scaled values (far beyond the fitted range) have no original value; "
             "restoring leaves them blank."
+        )
+    if fc.method == "quantile":
+        cautions.append(
+            "New values beyond the fitted range all become the end ranks, so they cannot be "
+            "told apart after scaling, nor restored exactly."
         )
     return cautions
 
