@@ -71,12 +71,24 @@ def test_html_report_in_headless_chromium(every_method, tmp_path):
     # the first columns' histograms: blue bars on the left, orange bars on the right
     blue, orange = near(rgb, ORIGINAL), near(rgb, SCALED)
     assert blue.sum() > 10_000 and orange.sum() > 10_000
-    blue_x = np.flatnonzero(blue.any(axis=0))
+    blue_x = np.flatnonzero(blue.any(axis=0))  # the columns of pixels they appear in
     orange_x = np.flatnonzero(orange.any(axis=0))
-    assert np.median(np.flatnonzero(blue)[:, None] % 1200) < np.median(
-        np.flatnonzero(orange)[:, None] % 1200
-    )
+    assert np.median(np.nonzero(blue)[1]) < np.median(np.nonzero(orange)[1])
     assert blue_x.min() < orange_x.min() and blue_x.max() < orange_x.max()
+
+
+def test_without_data_the_browser_shows_no_bars_and_says_why(every_method, tmp_path):
+    # the same check on a report without figures: it must tell the two apart
+    path, data, project = every_method
+    data.unlink()
+    page = tmp_path / "no_figures.html"
+    write_report(project, page, project_path=path)
+    png = tmp_path / "no_figures.png"
+    screenshot(page, png, tmp_path / "profile")
+    rgb = pixels(png)
+    assert ink(rgb) > 0.03
+    assert near(rgb, ORIGINAL).sum() < 100 and near(rgb, SCALED).sum() < 100
+    assert near(rgb, "#a04000", 40).sum() > 500  # the reason, in the warning colour
 
 
 def test_pdf_report_pages(every_method, tmp_path, qapp):
