@@ -16,7 +16,7 @@ from collections.abc import Callable, Sequence
 from pathlib import Path
 from typing import Any
 
-from .errors import ColumnError, OptionError, ReadError, ScalewrightError, WriteError
+from .errors import ColumnError, OptionError, ReadError, ScalewrightError
 
 PROG = "scalewright"
 
@@ -422,16 +422,12 @@ def _open_window(path: str | None, check_and_quit: bool = False) -> int:
 
 def cmd_fit(args: argparse.Namespace) -> int:
     from .engine import FitSettings
-    from .io import ReadOptions, atomic_path, ensure_not_source, read_table
-    from .project import SUFFIX, project_to_json, save_project
+    from .io import ReadOptions, atomic_path, read_table
+    from .project import project_to_json, save_project
+    from .projects import check_project_target
     from .tasks import check_target, export_scaled, fit_project
 
-    project_path = Path(args.project)
-    if project_path.suffix.lower() != SUFFIX:
-        raise WriteError(project_path, f"a project file name must end in {SUFFIX}")
-    ensure_not_source(project_path, args.data)
-    if not project_path.absolute().parent.is_dir():
-        raise WriteError(project_path, "the folder does not exist")
+    project_path = check_project_target(args.project, args.data)
     output = check_target(args.output, source=args.data) if args.output else None
     specs = parse_method_specs(args.method)
     fit_where = None
@@ -490,14 +486,28 @@ def _report_notes(reports) -> list[str]:
 
 
 def cmd_apply(args: argparse.Namespace) -> int:
-    from .tasks import apply_to_file, check_target, describe_reports, load_project_or_workbook
+    from .tasks import (
+        apply_to_file,
+        check_not_project_files,
+        check_target,
+        describe_reports,
+        load_project_or_workbook,
+    )
 
+    # The output is checked once: its name before the project is read, then that it is
+    # none of the project's own files.
     output = check_target(args.output, source=args.data)
     project = load_project_or_workbook(args.project)
-    check_target(output, source=args.data, project=project)
+    check_not_project_files(output, project)
     with _progress("scaling") as progress:
         reports = apply_to_file(
-            project, args.data, output, clip=args.clip, sheet=args.sheet, progress=progress
+            project,
+            args.data,
+            output,
+            clip=args.clip,
+            sheet=args.sheet,
+            progress=progress,
+            checked=True,
         )
     for line in describe_reports(reports):
         print(line)
@@ -508,22 +518,29 @@ def cmd_apply(args: argparse.Namespace) -> int:
 def cmd_restore(args: argparse.Namespace) -> int:
     from .tasks import (
         NothingToRestore,
+        check_not_project_files,
         check_target,
         describe_reports,
         load_project_or_workbook,
         restore_file,
     )
 
-    output = check_target(args.output, source=args.data)
+    output = check_target(args.output, source=args.data)  # once, as for apply
     project = load_project_or_workbook(args.project)
-    check_target(output, source=args.data, project=project)
+    check_not_project_files(output, project)
     if project.plan is None:
         raise ScalewrightError(f"{args.project}: the project has no fitted parameters")
     mapping = parse_mapping(args.mapping, list(project.plan.columns))
     try:
         with _progress("restoring") as progress:
             reports = restore_file(
-                project, args.data, output, mapping=mapping, sheet=args.sheet, progress=progress
+                project,
+                args.data,
+                output,
+                mapping=mapping,
+                sheet=args.sheet,
+                progress=progress,
+                checked=True,
             )
     except NothingToRestore as err:
         raise ScalewrightError(f"{err}; name the pairs with --as COLUMN=SOURCE_COLUMN") from None
@@ -534,11 +551,12 @@ def cmd_restore(args: argparse.Namespace) -> int:
 
 
 def cmd_show(args: argparse.Namespace) -> int:
+    from .projects import is_project_file
     from .tasks import load_project_or_workbook
 
     project = load_project_or_workbook(args.project)
     path = Path(args.project)
-    for line in show_lines(project, path if path.suffix.lower() == ".swproj" else None):
+    for line in show_lines(project, path if is_project_file(path) else None):
         print(line)
     return 0
 

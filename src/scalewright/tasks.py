@@ -218,20 +218,26 @@ def check_target(
         )
     ensure_not_source(target, source)
     if project is not None:
-        _ensure_not(
-            target,
-            project.loaded_from,
-            "this is the file the parameters come from; choose another name so it stays as it is",
-        )
-        _ensure_not(
-            target,
-            project.source,
-            "this is the data file the parameters were fitted on; choose another name so it "
-            "stays as it is",
-        )
+        check_not_project_files(target, project)
     if target.is_dir():
         raise WriteError(target, "this is a folder; give a file name")
     return target
+
+
+def check_not_project_files(target: Path, project: Project) -> None:
+    """:class:`WriteError` when ``target`` is the file ``project`` was loaded from (a
+    project file or a scaled workbook) or the data file it was fitted on."""
+    _ensure_not(
+        target,
+        project.loaded_from,
+        "this is the file the parameters come from; choose another name so it stays as it is",
+    )
+    _ensure_not(
+        target,
+        project.source,
+        "this is the data file the parameters were fitted on; choose another name so it "
+        "stays as it is",
+    )
 
 
 def _ensure_not(target: Path, other: Path | None, message: str) -> None:
@@ -263,6 +269,19 @@ def write_output(
         headers = data.headers if headers is None else headers
         data = data.data
     target = check_target(target, source=source, project=project)
+    _write_checked(target, data, headers, project, progress=progress, cancelled=cancelled)
+
+
+def _write_checked(
+    target: Path,
+    data: pd.DataFrame,
+    headers: Sequence[str] | None,
+    project: Project | None,
+    *,
+    progress: Progress | None = None,
+    cancelled: CancelCheck | None = None,
+) -> None:
+    """:func:`write_output` to a target :func:`check_target` has passed."""
     if headers is None:
         headers = [str(c) for c in data.columns]
     if target.suffix.lower() == ".xlsx" and project is not None and project.plan is not None:
@@ -318,16 +337,19 @@ def apply_to_file(
     options: ReadOptions | None = None,
     progress: Progress | None = None,
     cancelled: CancelCheck | None = None,
+    checked: bool = False,
 ) -> list[ColumnReport]:
     """Read ``data_path`` and scale it with the saved parameters (see :func:`apply_table`).
 
     ``options`` says how to read the file (by default its layout is detected afresh);
-    ``sheet``, when given, picks the worksheet over ``options.sheet``.
+    ``sheet``, when given, picks the worksheet over ``options.sheet``. ``checked`` says
+    the caller has already passed ``target`` through :func:`check_target` with this data
+    file and project (the output is checked once, before anything is read).
     """
     _fitted(project)
-    check_target(target, source=data_path, project=project)
+    target = Path(target) if checked else check_target(target, source=data_path, project=project)
     table = _read(data_path, options, sheet, _part(progress, 0.0, 0.5), cancelled)
-    return apply_table(
+    return _apply_checked(
         project, table, target, clip=clip, progress=_part(progress, 0.5, 1.0), cancelled=cancelled
     )
 
@@ -347,19 +369,25 @@ def apply_table(
     The reports count, per column, the values outside the range the parameters were
     fitted on; with ``clip`` those are moved to the nearest end of that range first.
     """
+    _fitted(project)
+    target = check_target(target, source=table.source, project=project)
+    return _apply_checked(project, table, target, clip=clip, progress=progress, cancelled=cancelled)
+
+
+def _apply_checked(
+    project: Project,
+    table: Table,
+    target: Path,
+    *,
+    clip: bool,
+    progress: Progress | None,
+    cancelled: CancelCheck | None,
+) -> list[ColumnReport]:
+    """:func:`apply_table` to a target :func:`check_target` has passed."""
     plan = _fitted(project)
-    check_target(target, source=table.source, project=project)
     _check_fitted_columns_numeric(table, plan.columns)
     data, reports = apply(blank_as_numbers(table, plan.columns), plan, clip=clip)
-    write_output(
-        target,
-        data,
-        table.headers,
-        project,
-        source=table.source,
-        progress=progress,
-        cancelled=cancelled,
-    )
+    _write_checked(target, data, table.headers, project, progress=progress, cancelled=cancelled)
     return reports
 
 
@@ -413,13 +441,15 @@ def restore_file(
     options: ReadOptions | None = None,
     progress: Progress | None = None,
     cancelled: CancelCheck | None = None,
+    checked: bool = False,
 ) -> list[ColumnReport]:
     """Read ``data_path`` and turn its scaled values back into original units (see
-    :func:`restore_table`). ``options`` and ``sheet`` as for :func:`apply_to_file`."""
+    :func:`restore_table`). ``options``, ``sheet`` and ``checked`` as for
+    :func:`apply_to_file`."""
     _fitted(project)
-    check_target(target, source=data_path, project=project)
+    target = Path(target) if checked else check_target(target, source=data_path, project=project)
     table = _read(data_path, options, sheet, _part(progress, 0.0, 0.5), cancelled)
-    return restore_table(
+    return _restore_checked(
         project,
         table,
         target,
@@ -448,8 +478,31 @@ def restore_table(
     where the user may set a name match to "leave as is"). Columns not restored pass
     through untouched. The output is a plain table.
     """
+    _fitted(project)
+    target = check_target(target, source=table.source, project=project)
+    return _restore_checked(
+        project,
+        table,
+        target,
+        mapping=mapping,
+        exact=exact,
+        progress=progress,
+        cancelled=cancelled,
+    )
+
+
+def _restore_checked(
+    project: Project,
+    table: Table,
+    target: Path,
+    *,
+    mapping: Mapping[str, str] | None,
+    exact: bool,
+    progress: Progress | None,
+    cancelled: CancelCheck | None,
+) -> list[ColumnReport]:
+    """:func:`restore_table` to a target :func:`check_target` has passed."""
     plan = _fitted(project)
-    check_target(target, source=table.source, project=project)
     pairs = {} if exact else auto_mapping(list(table.data.columns), project)
     for column, fitted in (mapping or {}).items():
         if column not in table.data.columns:
@@ -467,15 +520,7 @@ def restore_table(
         )
     _check_fitted_columns_numeric(table, list(pairs))
     data, reports = restore(blank_as_numbers(table, pairs), plan, pairs)
-    write_output(
-        target,
-        data,
-        table.headers,
-        None,
-        source=table.source,
-        progress=progress,
-        cancelled=cancelled,
-    )
+    _write_checked(target, data, table.headers, None, progress=progress, cancelled=cancelled)
     return reports
 
 

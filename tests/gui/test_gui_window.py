@@ -710,7 +710,7 @@ def test_opening_a_project_shows_its_table_once_with_the_loading_jobs_figures(
 ):
     import threading
 
-    from scalewright.gui import state
+    from scalewright.session import figures as state
 
     w = opened
     _, project_path = _saved_project(qtbot, w, tmp_path, wait_job)
@@ -747,18 +747,18 @@ def test_opening_a_project_looks_for_its_data_file_in_the_loading_job(
 ):
     import threading
 
-    from scalewright.gui import main_window
+    from scalewright import projects
 
     w = opened
     _, project_path = _saved_project(qtbot, w, tmp_path, wait_job)
     threads = []
-    real = main_window.locate_source
+    real = projects.locate_source
 
     def locate(*args, **kwargs):
         threads.append(threading.current_thread() is threading.main_thread())
         return real(*args, **kwargs)
 
-    monkeypatch.setattr(main_window, "locate_source", locate)
+    monkeypatch.setattr(projects, "locate_source", locate)
     w.open_project(project_path)
     wait_job(w)
     assert threads == [False]
@@ -891,3 +891,49 @@ def test_the_window_opens_no_larger_than_the_screen(qtbot, window):
     window.show()
     right = window.method_scroll.geometry().right()
     assert right <= window.centralWidget().width()
+
+
+def test_kept_and_refitted_columns_each_record_where_their_parameters_came_from(
+    qtbot, opened, tmp_path, wait_job
+):
+    """The mixed case: open a project whose data changed, keep the saved parameters,
+    refit one column, save. The kept column still says it was fitted on the file as it
+    was (its size, SHA-256 and row count); the refitted one says the file as it is now."""
+    w = opened
+    data = tmp_path / "harvest.csv"
+    shutil.copy(HARVEST_2025, data)
+    w.load_data(data)
+    wait_job(w)
+    click_row(qtbot, w, "yield_kg")
+    choose_method(w, "zscore")
+    click_row(qtbot, w, "soil_ph")
+    choose_method(w, "minmax")
+    project_path = tmp_path / "h.swproj"
+    assert w.save_project(project_path, wait=True)
+    first = load_project(project_path)
+    with data.open("a", encoding="utf-8") as f:
+        f.write("999999,Hilltop,Russet,2001-04-01,24,80.1,5000.0,900,13.1,4000,0,6.5,train\n")
+    w.ask_keep_saved_parameters = lambda name: True
+    w.open_project(project_path)
+    wait_job(w)
+    click_row(qtbot, w, "soil_ph")
+    choose_method(w, "zscore")  # refitted on the file as it is now
+    again = tmp_path / "again.swproj"
+    assert w.save_project(again, wait=True)
+    second = load_project(again)
+    now = tasks.file_fingerprint(data)
+    old = (first.source_size, first.source_sha256)
+    assert now != old
+    kept, refitted = second.fitted_on("yield_kg"), second.fitted_on("soil_ph")
+    assert (kept.size, kept.sha256, kept.rows) == (*old, 2412)
+    assert (refitted.size, refitted.sha256, refitted.rows) == (*now, 2413)
+    assert second.plan["yield_kg"].pooled.params == first.plan["yield_kg"].pooled.params
+    # Reopened on the same file: nothing is asked, and each column keeps its own record.
+    w.ask_keep_saved_parameters = lambda name: pytest.fail("asked about an unchanged file")
+    w.open_project(again)
+    wait_job(w)
+    third = tmp_path / "third.swproj"
+    assert w.save_project(third, wait=True)
+    reloaded = load_project(third)
+    assert reloaded.fitted_on("yield_kg") == kept
+    assert reloaded.fitted_on("soil_ph") == refitted

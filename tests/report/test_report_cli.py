@@ -14,7 +14,7 @@ from scalewright import tasks
 from scalewright.cli import main
 from scalewright.io import read_table
 from scalewright.project import project_to_json
-from test_import_contract import QT_NAMES, run_without_qt
+from test_import_contract import QT_NAMES
 
 
 def test_report_html_from_a_project(every_method, tmp_path, capsys):
@@ -91,11 +91,6 @@ def test_usage_error_without_output(every_method):
     with pytest.raises(SystemExit) as exit_:
         main(["report", str(path)])
     assert exit_.value.code == 2
-
-
-def test_report_module_imports_without_qt():
-    result = run_without_qt("scalewright.report")
-    assert result.returncode == 0, result.stderr
 
 
 def test_html_report_is_written_with_qt_blocked(every_method, tmp_path):

@@ -345,3 +345,19 @@ def test_the_usual_cautions_are_stated(every_method):
     by_label = {s.label: s for s in report.columns}
     assert any("shape" in c for c in by_label["yield_kg"].cautions)  # Box-Cox
     assert not by_label["fruit_count"].cautions  # z-score: a straight line
+
+
+def test_a_column_kept_from_an_earlier_file_says_so_and_is_not_drawn(every_method):
+    from scalewright.project import FittedOn
+
+    path, _data, project = every_method
+    earlier = FittedOn(size=1234, sha256="ab" * 32, rows=1900)
+    project.column_fitted_on["yield_kg"] = earlier
+    report = build_report(project, path)
+    by_label = {s.label: s for s in report.columns}
+    kept = by_label["yield_kg"]
+    assert kept.fit_summary[0].endswith("from 1,900 rows: the rows where split is train.")
+    assert any("earlier version" in line and "ab" * 32 in line for line in kept.fit_summary)
+    assert not kept.figures and "earlier version of the data file" in kept.figures_missing
+    others = [s for s in report.columns if s.label != "yield_kg"]
+    assert all(len(s.figures) == 2 and "1,945 rows" in s.fit_summary[0] for s in others)

@@ -17,8 +17,8 @@ from PySide6.QtCore import QPointF, Qt, QTimer
 from PySide6.QtWidgets import QGridLayout, QHBoxLayout, QLabel, QPushButton, QVBoxLayout, QWidget
 
 from ..engine import get_method
+from ..session import Figures, RangeInfo, Session
 from . import theme
-from .state import Figures, RangeInfo, Session
 
 
 def fmt(v: float) -> str:

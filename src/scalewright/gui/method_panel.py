@@ -25,8 +25,8 @@ from PySide6.QtWidgets import (
 
 from ..engine import METHODS, FitSettings, OptionSpec, get_method
 from ..errors import ScalewrightError
+from ..session import FIT_WHERE_KINDS, Session
 from . import commands, theme
-from .state import FIT_WHERE_KINDS, Session
 
 ALL_ROWS = "all rows"
 NO_GROUPS = "no groups"

@@ -222,13 +222,24 @@ def _count(n: int, word: str) -> str:
 # =========================================================================== building
 
 
-def _rows_words(project: Project) -> str:
+def _rows_words(project: Project, rows: int | None = None) -> str:
+    """Which rows were fitted: ``rows`` of them (the project's count unless given)."""
     plan = project.plan
     assert plan is not None
+    rows = plan.n_rows if rows is None else rows
     where = plan.settings.fit_where
     if where is None:
-        return f"all {_count(plan.n_rows, 'row')} of the data file"
-    return f"{_count(plan.n_rows, 'row')}: the rows where {where[0]} is {where[1]}"
+        return f"all {_count(rows, 'row')} of the data file"
+    return f"{_count(rows, 'row')}: the rows where {where[0]} is {where[1]}"
+
+
+def _earlier_data(project: Project, label: str):
+    """What the column was fitted on when that is not the data file the project records
+    (saved parameters kept after the file changed), else None."""
+    own = project.column_fitted_on.get(label)
+    if own is None or (own.size, own.sha256) == (project.source_size, project.source_sha256):
+        return None
+    return own
 
 
 def _facts(project: Project, project_path: Path | None, source_state: str, made: str):
@@ -281,7 +292,16 @@ def _param_sets(project: Project, fc: FittedColumn) -> list[tuple[str, ParamSet]
 
 
 def _fit_summary(project: Project, fc: FittedColumn) -> list[str]:
-    lines = [f"Fitted on {_count(fc.pooled.n, 'value')} from {_rows_words(project)}."]
+    fitted_on = project.fitted_on(fc.column)
+    rows = fitted_on.rows if fitted_on is not None else None
+    lines = [f"Fitted on {_count(fc.pooled.n, 'value')} from {_rows_words(project, rows)}."]
+    earlier = _earlier_data(project, fc.column)
+    if earlier is not None:
+        size = f"{earlier.size:,} bytes" if earlier.size is not None else "size not recorded"
+        lines.append(
+            "These parameters were kept from an earlier version of the data file "
+            f"({size}, SHA-256 {earlier.sha256 or 'not recorded'}), not the one named above."
+        )
     left_out = []
     if fc.n_missing:
         left_out.append(_count(fc.n_missing, "blank cell"))
@@ -410,11 +430,16 @@ def _column(
     figures: list[Figure] = []
     note = ""
     missing = data_problem
+    if not missing and _earlier_data(project, fc.column) is not None:
+        missing = (
+            "The figures could not be drawn: these parameters were fitted on an earlier "
+            "version of the data file, whose values are not the ones read for this report."
+        )
     if not missing:
         try:
             values = column_values(data, fc.column)
         except ScalewrightError as err:
-            missing = f"the figures could not be drawn: {err}"
+            missing = f"The figures could not be drawn: {err}."
         else:
             figures, note = _figures(project, fc, header, values)
     return ColumnSection(
