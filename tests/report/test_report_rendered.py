@@ -9,9 +9,10 @@ import subprocess
 from pathlib import Path
 
 import numpy as np
+import pytest
 
 from scalewright.report import write_report
-from scalewright.report.svg import ORIGINAL, SCALED
+from scalewright.report.svg import HEIGHT, ORIGINAL, SCALED, WIDTH
 
 
 def pixels(png: Path) -> np.ndarray:
@@ -111,6 +112,13 @@ def test_pdf_report_pages(every_method, tmp_path, qapp):
         rgb for rgb in pictures if near(rgb, ORIGINAL).sum() > 500 and near(rgb, SCALED).sum() > 500
     ]
     assert len(with_both) >= len(report.columns)
+    # every histogram is an image of the PDF (poppler's pdfimages lists them)
+    listed = subprocess.run(
+        ["pdfimages", "-list", str(pdf)], capture_output=True, text=True, check=True
+    ).stdout.splitlines()[2:]
+    sizes = [(int(line.split()[3]), int(line.split()[4])) for line in listed]
+    assert len(sizes) == 2 * len(report.columns)
+    assert all(w / h == pytest.approx(WIDTH / HEIGHT, rel=0.01) for w, h in sizes)
     text = subprocess.run(
         ["pdftotext", "-layout", str(pdf), "-"], capture_output=True, text=True, check=True
     ).stdout

@@ -22,7 +22,7 @@ from .svg import HEIGHT, WIDTH
 # 96 pixels per inch, and QTextDocument.print_ keeps a 2 cm margin of its own (so the
 # writer is given none), which leaves about 640 pixels.
 PRINTED_WIDTH = 300
-SHARPNESS = 3  # images are drawn at this multiple of their printed size
+SHARPNESS = 2  # images are drawn at this multiple of their own size (about 290 dpi printed)
 
 _app = None  # the QGuiApplication made here when the caller had none
 
