@@ -20,7 +20,7 @@ from scalewright.engine import ColumnChoice, FitSettings, column_values, histogr
 from scalewright.io import read_table
 from scalewright.project import ALL_ROWS, UNSEEN_GROUPS, load_project, save_project
 from scalewright.report import build_report, render_html, write_report
-from scalewright.report.content import reverse_formula
+from scalewright.report.formulas import reverse_formula
 from scalewright.report.svg import nice_ticks
 
 SVG_NS = "{http://www.w3.org/2000/svg}"
