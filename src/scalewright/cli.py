@@ -2,7 +2,8 @@
 
 The same calls as the window (``scalewright.tasks``), with no Qt import unless the window
 is asked for. Exit status: 0 success; 1 bad input, with one line ``scalewright: <message>``
-on standard error and no output file left behind; 2 a usage error (argparse).
+on standard error and no output file left behind; 2 a usage error (argparse); 130 or 143
+when stopped by Ctrl-C (SIGINT) or SIGTERM, after removing any unfinished file.
 See ``docs/command-line.md``.
 """
 
@@ -11,7 +12,9 @@ from __future__ import annotations
 import argparse
 import contextlib
 import os
+import signal
 import sys
+import threading
 from collections.abc import Callable, Sequence
 from pathlib import Path
 from typing import Any
@@ -45,18 +48,23 @@ examples:
   scalewright fit harvest_2025.csv -m '*=zscore' -m pest_trap_count=yeojohnson \\
       --fit-where split=train -p harvest.swproj -o harvest_2025_scaled.xlsx
   scalewright fit harvest_2025.xlsx --sheet harvest_2025 -m soil_ph=minmax:low=-1,high=1 \\
-      --group-by orchard -p soil.swproj"""
+      --group-by orchard -p soil.swproj
+  scalewright fit payments_2025.csv --kind payment_cents=number \\
+      -m payment_cents=zscore -p payments.swproj"""
 
 APPLY_EXAMPLES = """\
 examples:
   scalewright apply harvest.swproj harvest_2026.csv -o harvest_2026_scaled.csv
-  scalewright apply harvest_2025_scaled.xlsx harvest_2026.xlsx -o harvest_2026_scaled.xlsx --clip"""
+  scalewright apply harvest_2025_scaled.xlsx harvest_2026.xlsx -o harvest_2026_scaled.xlsx --clip
+  scalewright apply harvest.swproj yields_2026.csv --as yield_2026=yield_kg -o yields_scaled.csv"""
 
 RESTORE_EXAMPLES = """\
 examples:
   scalewright restore harvest.swproj harvest_2026_scaled.csv -o harvest_2026_restored.csv
   scalewright restore harvest_2025_scaled.xlsx predicted_yield_scaled.csv \\
-      --as predicted_yield=yield_kg -o predicted_yield_kg.csv"""
+      --as predicted_yield=yield_kg -o predicted_yield_kg.csv
+  scalewright restore harvest.swproj predicted_yield_scaled.csv --as predicted_yield=yield_kg \\
+      --name predicted_yield=predicted_yield_kg -o predicted_yield_kg.csv"""
 
 REPORT_EXAMPLES = """\
 examples:
@@ -163,6 +171,16 @@ def build_parser() -> argparse.ArgumentParser:
     )
     _add_sheet(p)
     p.add_argument(
+        "--kind",
+        dest="kinds",
+        metavar="COLUMN=KIND",
+        action="append",
+        default=[],
+        help="read COLUMN as number, identifier, text or date instead of the kind guessed "
+        "(for example amount_cents=number); kept in the project for apply and restore; "
+        "repeat for more columns",
+    )
+    p.add_argument(
         "--group-by", metavar="COLUMN", help="fit one set of parameters per value of COLUMN"
     )
     p.add_argument(
@@ -191,6 +209,15 @@ def build_parser() -> argparse.ArgumentParser:
         action="store_true",
         help="move values outside the fitted range to its nearest end first",
     )
+    p.add_argument(
+        "--as",
+        dest="mapping",
+        metavar="COLUMN=FITTED_COLUMN",
+        action="append",
+        default=[],
+        help="scale COLUMN of DATA with the parameters fitted for FITTED_COLUMN (for a file "
+        "whose column has another name); repeat for more columns",
+    )
 
     p = commands.add_parser(
         "restore",
@@ -212,6 +239,15 @@ def build_parser() -> argparse.ArgumentParser:
         action="append",
         default=[],
         help="restore COLUMN of DATA with the parameters fitted for SOURCE_COLUMN",
+    )
+    p.add_argument(
+        "--name",
+        dest="names",
+        metavar="COLUMN=NEW_NAME",
+        action="append",
+        default=[],
+        help="call restored COLUMN NEW_NAME in the output (by default it keeps its name); "
+        "repeat for more columns",
     )
 
     p = commands.add_parser(
@@ -376,6 +412,58 @@ def build_choices(table, specs: Sequence[tuple[str, Any]], group_by: str | None 
     return choices
 
 
+def parse_kinds(pairs: Sequence[str]) -> dict[str, str]:
+    """``--kind COLUMN=KIND`` pairs; split at the last ``=`` (a kind word holds none), so a
+    column name may contain ``=``."""
+    from .io import CORRECTABLE_KINDS
+
+    words = ", ".join(CORRECTABLE_KINDS)
+    out: dict[str, str] = {}
+    for text in pairs:
+        column, sep, kind = text.rpartition("=")
+        if not sep or not column.strip() or not kind.strip():
+            raise OptionError(f"--kind '{text}' must be written COLUMN=KIND, for example id=text")
+        column, kind = column.strip(), kind.strip().lower()
+        if kind not in CORRECTABLE_KINDS:
+            raise OptionError(f"--kind '{text}': '{kind}' is not a kind (use one of {words})")
+        if column in out and out[column] != kind:
+            raise OptionError(f"--kind names the column '{column}' twice")
+        out[column] = kind
+    return out
+
+
+def check_kinds(table, kinds: dict[str, str]) -> None:
+    """Every ``--kind`` column is in the table."""
+    for column in kinds:
+        if column not in table.data.columns:
+            raise ColumnError(
+                column,
+                f"(--kind) there is no such column in {table.source.name} "
+                f"(columns: {_name_list(table.data.columns)})",
+            )
+
+
+def check_identifiers(table, choices) -> None:
+    """A method on a column read as an identifier whose every cell is a number: say how to
+    read it as numbers instead (the general refusal comes later, in ``tasks``)."""
+    import shlex
+
+    from .io import identifier_of_numbers
+
+    for label, choice in choices.items():
+        if choice.method == "none":
+            continue
+        reason = identifier_of_numbers(table, label)
+        if reason is not None:
+            pair = f"{label}=number"
+            quoted = shlex.quote(pair) if shlex.quote(pair) != pair else f"'{pair}'"
+            raise ColumnError(
+                label,
+                f"was read as an identifier ({reason}), and identifiers are never scaled; "
+                f"add --kind {quoted} to scale it",
+            )
+
+
 def _name_list(names, limit: int = 12) -> str:
     names = [str(n) for n in names]
     shown = ", ".join(names[:limit])
@@ -399,6 +487,17 @@ def parse_mapping(pairs: Sequence[str], fitted: Sequence[str]) -> dict[str, str]
         if column in out:
             raise OptionError(f"--as names the column '{column}' twice")
         out[column] = source
+    return out
+
+
+def parse_names(pairs: Sequence[str]) -> dict[str, str]:
+    """``--name COLUMN=NEW_NAME`` pairs, split at the first ``=``."""
+    out: dict[str, str] = {}
+    for text in pairs:
+        column, new = _split_pair(text, "--name", "COLUMN=NEW_NAME")
+        if column in out:
+            raise OptionError(f"--name names the column '{column}' twice")
+        out[column] = new
     return out
 
 
@@ -430,12 +529,14 @@ def cmd_fit(args: argparse.Namespace) -> int:
     project_path = check_project_target(args.project, args.data)
     output = check_target(args.output, source=args.data) if args.output else None
     specs = parse_method_specs(args.method)
+    kinds = parse_kinds(args.kinds)
     fit_where = None
     if args.fit_where is not None:
         fit_where = _split_pair(args.fit_where, "--fit-where", "COLUMN=VALUE, e.g. split=train")
 
     with _progress("reading") as progress:
-        table = read_table(args.data, ReadOptions(sheet=args.sheet), progress=progress)
+        table = read_table(args.data, ReadOptions(sheet=args.sheet, kinds=kinds), progress=progress)
+    check_kinds(table, kinds)
     if fit_where is not None and fit_where[0] not in table.data.columns:
         raise ColumnError(
             fit_where[0], f"(--fit-where) there is no such column in {table.source.name}"
@@ -445,6 +546,7 @@ def cmd_fit(args: argparse.Namespace) -> int:
             args.group_by, f"(--group-by) there is no such column in {table.source.name}"
         )
     choices = build_choices(table, specs, args.group_by)
+    check_identifiers(table, choices)
     if not any(c.method != "none" for c in choices.values()):
         raise OptionError(
             "no column to fit: every -m chose 'none' or '*' matched no numeric column"
@@ -487,6 +589,7 @@ def _report_notes(reports) -> list[str]:
 
 def cmd_apply(args: argparse.Namespace) -> int:
     from .tasks import (
+        MissingFittedColumn,
         apply_to_file,
         check_not_project_files,
         check_target,
@@ -499,16 +602,23 @@ def cmd_apply(args: argparse.Namespace) -> int:
     output = check_target(args.output, source=args.data)
     project = load_project_or_workbook(args.project)
     check_not_project_files(output, project)
-    with _progress("scaling") as progress:
-        reports = apply_to_file(
-            project,
-            args.data,
-            output,
-            clip=args.clip,
-            sheet=args.sheet,
-            progress=progress,
-            checked=True,
-        )
+    mapping = parse_mapping(args.mapping, list(project.plan.columns) if project.plan else [])
+    try:
+        with _progress("scaling") as progress:
+            reports = apply_to_file(
+                project,
+                args.data,
+                output,
+                clip=args.clip,
+                mapping=mapping,
+                sheet=args.sheet,
+                progress=progress,
+                checked=True,
+            )
+    except MissingFittedColumn as err:
+        raise ScalewrightError(
+            f"{err}; if it has another name there, pair them with --as COLUMN={err.column}"
+        ) from None
     for line in describe_reports(reports):
         print(line)
     print(f"scaled data written to {output}")
@@ -531,6 +641,7 @@ def cmd_restore(args: argparse.Namespace) -> int:
     if project.plan is None:
         raise ScalewrightError(f"{args.project}: the project has no fitted parameters")
     mapping = parse_mapping(args.mapping, list(project.plan.columns))
+    names = parse_names(args.names)
     try:
         with _progress("restoring") as progress:
             reports = restore_file(
@@ -538,6 +649,7 @@ def cmd_restore(args: argparse.Namespace) -> int:
                 args.data,
                 output,
                 mapping=mapping,
+                names=names,
                 sheet=args.sheet,
                 progress=progress,
                 checked=True,
@@ -683,6 +795,43 @@ def _fail(message: str) -> int:
     return 1
 
 
+class Stopped(BaseException):
+    """SIGINT or SIGTERM arrived: unwinds like Ctrl-C, so every ``finally`` and
+    ``atomic_path`` removes its unfinished files before the command ends."""
+
+    def __init__(self, signum: int) -> None:
+        super().__init__(signum)
+        self.signum = signum
+
+
+_STOP_WORDS = {signal.SIGINT: "by Ctrl-C", signal.SIGTERM: "by a request to end (SIGTERM)"}
+
+
+@contextlib.contextmanager
+def _stop_on_signals():
+    """Turn SIGINT and SIGTERM into :class:`Stopped` while a batch command runs.
+
+    Only the first signal is acted on; later ones are ignored so that removing the
+    unfinished files is not itself cut short.
+    """
+    if threading.current_thread() is not threading.main_thread():
+        yield
+        return
+    caught = tuple(_STOP_WORDS)
+
+    def stop(signum, frame) -> None:
+        for s in caught:
+            signal.signal(s, signal.SIG_IGN)
+        raise Stopped(signum)
+
+    previous = {s: signal.signal(s, stop) for s in caught}
+    try:
+        yield
+    finally:
+        for s, handler in previous.items():
+            signal.signal(s, handler)
+
+
 def main(argv: Sequence[str] | None = None) -> int:
     """Run the command line; return the exit status."""
     parser = build_parser()
@@ -690,7 +839,16 @@ def main(argv: Sequence[str] | None = None) -> int:
     try:
         if args.command is None:
             return _open_window(None)
-        return _COMMANDS[args.command](args)
+        if args.command == "open":
+            return _COMMANDS[args.command](args)
+        with _stop_on_signals():
+            return _COMMANDS[args.command](args)
+    except Stopped as stop:
+        # The conventional status of a program ended by a signal: 128 + its number.
+        sys.stderr.write(
+            f"{PROG}: stopped {_STOP_WORDS[stop.signum]}; no unfinished file was left\n"
+        )
+        return 128 + int(stop.signum)
     except ScalewrightError as err:
         return _fail(str(err))
     except OSError as err:
@@ -703,7 +861,7 @@ def main(argv: Sequence[str] | None = None) -> int:
     except MemoryError:
         return _fail("not enough memory for this file")
     except KeyboardInterrupt:
-        sys.stderr.write(f"\n{PROG}: interrupted\n")
+        sys.stderr.write(f"{PROG}: stopped by Ctrl-C\n")
         return 130
     except Exception as err:  # a bug: still one line, never a traceback
         if os.environ.get("SCALEWRIGHT_DEBUG"):

@@ -314,6 +314,15 @@ def export_scaled(
     return apply_table(project, table, target, clip=clip, progress=progress, cancelled=cancelled)
 
 
+def reading_for(project: Project, options: ReadOptions | None = None) -> ReadOptions:
+    """How to read a new file for ``project``: the layout as given (else detected afresh),
+    with the project's kind corrections unless ``options`` carries its own."""
+    options = options or ReadOptions()
+    if options.kinds or not project.read_options.kinds:
+        return options
+    return dataclasses.replace(options, kinds=project.read_options.kinds)
+
+
 def _read(
     path: str | os.PathLike,
     options: ReadOptions | None,
@@ -333,6 +342,7 @@ def apply_to_file(
     target: str | os.PathLike,
     *,
     clip: bool = False,
+    mapping: Mapping[str, str] | None = None,
     sheet: str | None = None,
     options: ReadOptions | None = None,
     progress: Progress | None = None,
@@ -341,16 +351,24 @@ def apply_to_file(
 ) -> list[ColumnReport]:
     """Read ``data_path`` and scale it with the saved parameters (see :func:`apply_table`).
 
-    ``options`` says how to read the file (by default its layout is detected afresh);
-    ``sheet``, when given, picks the worksheet over ``options.sheet``. ``checked`` says
-    the caller has already passed ``target`` through :func:`check_target` with this data
-    file and project (the output is checked once, before anything is read).
+    ``options`` says how to read the file (by default its layout is detected afresh, and
+    the project's kind corrections are kept: :func:`reading_for`); ``sheet``, when given,
+    picks the worksheet over ``options.sheet``. ``checked`` says the caller has already
+    passed ``target`` through :func:`check_target` with this data file and project (the
+    output is checked once, before anything is read).
     """
     _fitted(project)
     target = Path(target) if checked else check_target(target, source=data_path, project=project)
-    table = _read(data_path, options, sheet, _part(progress, 0.0, 0.5), cancelled)
+    reading = reading_for(project, options)
+    table = _read(data_path, reading, sheet, _part(progress, 0.0, 0.5), cancelled)
     return _apply_checked(
-        project, table, target, clip=clip, progress=_part(progress, 0.5, 1.0), cancelled=cancelled
+        project,
+        table,
+        target,
+        clip=clip,
+        mapping=mapping,
+        progress=_part(progress, 0.5, 1.0),
+        cancelled=cancelled,
     )
 
 
@@ -360,18 +378,24 @@ def apply_table(
     target: str | os.PathLike,
     *,
     clip: bool = False,
+    mapping: Mapping[str, str] | None = None,
     progress: Progress | None = None,
     cancelled: CancelCheck | None = None,
 ) -> list[ColumnReport]:
     """Scale a table read from a new file with the saved parameters (nothing is refitted)
     and write it to ``target``.
 
-    The reports count, per column, the values outside the range the parameters were
-    fitted on; with ``clip`` those are moved to the nearest end of that range first.
+    Each fitted column is scaled in the column of the same name, unless ``mapping`` pairs
+    it with another (file column -> fitted column, e.g. ``{"yield_2026": "yield_kg"}``),
+    as for :func:`restore_table`. The reports count, per column, the values outside the
+    range the parameters were fitted on; with ``clip`` those are moved to the nearest end
+    of that range first.
     """
     _fitted(project)
     target = check_target(target, source=table.source, project=project)
-    return _apply_checked(project, table, target, clip=clip, progress=progress, cancelled=cancelled)
+    return _apply_checked(
+        project, table, target, clip=clip, mapping=mapping, progress=progress, cancelled=cancelled
+    )
 
 
 def _apply_checked(
@@ -380,13 +404,17 @@ def _apply_checked(
     target: Path,
     *,
     clip: bool,
+    mapping: Mapping[str, str] | None,
     progress: Progress | None,
     cancelled: CancelCheck | None,
 ) -> list[ColumnReport]:
     """:func:`apply_table` to a target :func:`check_target` has passed."""
     plan = _fitted(project)
-    _check_fitted_columns_numeric(table, plan.columns)
-    data, reports = apply(blank_as_numbers(table, plan.columns), plan, clip=clip)
+    mapping = _checked_pairs(table, plan, mapping or {})
+    paired = set(mapping.values())
+    columns = list(mapping) + [c for c in plan.columns if c not in paired]
+    _check_fitted_columns_numeric(table, columns)
+    data, reports = apply(blank_as_numbers(table, columns), plan, clip=clip, mapping=mapping)
     _write_checked(target, data, table.headers, project, progress=progress, cancelled=cancelled)
     return reports
 
@@ -402,10 +430,16 @@ def not_numbers(table: Table, label: str) -> str:
     return ""
 
 
+class MissingFittedColumn(ColumnError):
+    """A fitted column is not in the new file (each face adds how to pair it)."""
+
+
 def _check_fitted_columns_numeric(table: Table, columns: Sequence[str]) -> None:
     for label in columns:
         if label not in table.data.columns:
-            raise ColumnError(label, f"was fitted in the project but is not in {table.source.name}")
+            raise MissingFittedColumn(
+                label, f"was fitted in the project but is not in {table.source.name}"
+            )
         if why := not_numbers(table, label):
             raise ColumnError(label, f"{why}, so it cannot be scaled or restored")
 
@@ -436,6 +470,7 @@ def restore_file(
     target: str | os.PathLike,
     *,
     mapping: Mapping[str, str] | None = None,
+    names: Mapping[str, str] | None = None,
     exact: bool = False,
     sheet: str | None = None,
     options: ReadOptions | None = None,
@@ -448,12 +483,14 @@ def restore_file(
     :func:`apply_to_file`."""
     _fitted(project)
     target = Path(target) if checked else check_target(target, source=data_path, project=project)
-    table = _read(data_path, options, sheet, _part(progress, 0.0, 0.5), cancelled)
+    reading = reading_for(project, options)
+    table = _read(data_path, reading, sheet, _part(progress, 0.0, 0.5), cancelled)
     return _restore_checked(
         project,
         table,
         target,
         mapping=mapping,
+        names=names,
         exact=exact,
         progress=_part(progress, 0.5, 1.0),
         cancelled=cancelled,
@@ -466,6 +503,7 @@ def restore_table(
     target: str | os.PathLike,
     *,
     mapping: Mapping[str, str] | None = None,
+    names: Mapping[str, str] | None = None,
     exact: bool = False,
     progress: Progress | None = None,
     cancelled: CancelCheck | None = None,
@@ -476,7 +514,9 @@ def restore_table(
     overrides pairs (file column -> fitted column, e.g. ``{"predicted_yield": "yield_kg"}``).
     With ``exact``, only the pairs in ``mapping`` are restored (the window's mapping table,
     where the user may set a name match to "leave as is"). Columns not restored pass
-    through untouched. The output is a plain table.
+    through untouched. ``names`` gives a restored column a new name in the output (file
+    column -> new name, e.g. ``{"predicted_yield": "predicted_yield_kg"}``, now that it
+    holds kilograms); without it each keeps its name. The output is a plain table.
     """
     _fitted(project)
     target = check_target(target, source=table.source, project=project)
@@ -485,6 +525,7 @@ def restore_table(
         table,
         target,
         mapping=mapping,
+        names=names,
         exact=exact,
         progress=progress,
         cancelled=cancelled,
@@ -497,6 +538,7 @@ def _restore_checked(
     target: Path,
     *,
     mapping: Mapping[str, str] | None,
+    names: Mapping[str, str] | None,
     exact: bool,
     progress: Progress | None,
     cancelled: CancelCheck | None,
@@ -504,7 +546,22 @@ def _restore_checked(
     """:func:`restore_table` to a target :func:`check_target` has passed."""
     plan = _fitted(project)
     pairs = {} if exact else auto_mapping(list(table.data.columns), project)
-    for column, fitted in (mapping or {}).items():
+    pairs.update(_checked_pairs(table, plan, mapping or {}))
+    if not pairs:
+        raise NothingToRestore(
+            f"{table.source.name}: no column matches a fitted column of the project "
+            f"(fitted: {', '.join(plan.columns) or 'none'})"
+        )
+    _check_fitted_columns_numeric(table, list(pairs))
+    headers = renamed_headers(table, pairs, names or {})
+    data, reports = restore(blank_as_numbers(table, pairs), plan, pairs)
+    _write_checked(target, data, headers, None, progress=progress, cancelled=cancelled)
+    return reports
+
+
+def _checked_pairs(table: Table, plan: FittedPlan, mapping: Mapping[str, str]) -> dict[str, str]:
+    """``mapping`` (file column -> fitted column) after checking both names exist."""
+    for column, fitted in mapping.items():
         if column not in table.data.columns:
             raise ColumnError(column, f"is not in {table.source.name}")
         if fitted not in plan.columns:
@@ -512,16 +569,38 @@ def _restore_checked(
             raise ColumnError(
                 fitted, f"has no fitted parameters in the project (fitted: {fitted_names})"
             )
-        pairs[column] = fitted
-    if not pairs:
-        raise NothingToRestore(
-            f"{table.source.name}: no column matches a fitted column of the project "
-            f"(fitted: {', '.join(plan.columns) or 'none'})"
-        )
-    _check_fitted_columns_numeric(table, list(pairs))
-    data, reports = restore(blank_as_numbers(table, pairs), plan, pairs)
-    _write_checked(target, data, table.headers, None, progress=progress, cancelled=cancelled)
-    return reports
+    return dict(mapping)
+
+
+def renamed_headers(
+    table: Table, restored: Mapping[str, str], names: Mapping[str, str]
+) -> list[str]:
+    """The output's header row: ``table.headers`` with each restored column named in
+    ``names`` (file column -> new name) given its new name.
+
+    Refused: renaming a column that is not restored, an empty name, and a name that
+    another column of the output already has.
+    """
+    headers = list(table.headers)
+    labels = [str(c) for c in table.data.columns]
+    for column, new in names.items():
+        if column not in labels:
+            raise ColumnError(column, f"is not in {table.source.name}, so it cannot be renamed")
+        if column not in restored:
+            raise ColumnError(column, "is not restored, so it keeps its name")
+        if not new.strip():
+            raise ColumnError(column, "the new name is empty")
+        headers[labels.index(column)] = new
+    counts: dict[str, int] = {}
+    for h in headers:
+        counts[h] = counts.get(h, 0) + 1
+    for column, new in names.items():
+        if counts[new] > 1:
+            raise ColumnError(
+                column,
+                f"cannot be renamed '{new}': the output already has a column of that name",
+            )
+    return headers
 
 
 def load_project_or_workbook(path: str | os.PathLike) -> Project:

@@ -24,6 +24,7 @@ from typing import Any
 import numpy as np
 
 from ..errors import OptionError, ScalewrightError
+from .number_text import number_text
 
 _YES = {"yes", "true", "1", "on"}
 _NO = {"no", "false", "0", "off"}
@@ -104,14 +105,13 @@ class FitResult(dict):
 
 
 def format_number(value: float, digits: int = 10) -> str:
-    """A number for people: ``digits`` significant digits, never a negative zero."""
+    """A parameter for people: ``digits`` significant digits (``number_text``: never a
+    negative zero), yes/no for switches."""
     if isinstance(value, bool):
         return "yes" if value else "no"
     if isinstance(value, int):
         return str(value)
-    if value == 0:
-        return "0"
-    return f"{value:.{digits}g}"
+    return number_text(value, f".{digits}g")
 
 
 class Method:

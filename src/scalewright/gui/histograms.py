@@ -17,6 +17,7 @@ from PySide6.QtCore import QPointF, Qt, QTimer
 from PySide6.QtWidgets import QGridLayout, QHBoxLayout, QLabel, QPushButton, QVBoxLayout, QWidget
 
 from ..engine import get_method
+from ..engine.number_text import number_text
 from ..session import Figures, RangeInfo, Session
 from . import theme
 
@@ -26,16 +27,16 @@ def fmt(v: float) -> str:
     if v is None or (isinstance(v, float) and math.isnan(v)):
         return "–"
     if isinstance(v, float) and math.isinf(v):
-        return "∞" if v > 0 else "−∞"
+        return "∞" if v > 0 else "-∞"
     v = float(v)
     if v == 0:
         return "0"
     if abs(v) < 1e-12:  # rounding noise around zero, e.g. the mean of z-scores
         return "0"
-    text = f"{v:.4g}"
+    text = number_text(v, ".4g")
     if "e" not in text and abs(v) >= 1000:
-        text = f"{v:,.0f}"
-    return text.replace("-", "\u2212")
+        text = number_text(v, ",.0f")
+    return text  # the ASCII minus, as everywhere (number_text)
 
 
 FIGURE_LINES = 4

@@ -265,10 +265,12 @@ class RestoreDialog(WritingDialog):
     # ------------------------------------------------------------------ reading
 
     def _reader(self, path: Path, sheet: str | None):
+        reading = swio.ReadOptions(sheet=sheet)
+        if self._project is not None:  # read with the project's kind corrections
+            reading = tasks.reading_for(self._project, reading)
+
         def read(progress, cancelled):
-            return swio.read_table(
-                path, swio.ReadOptions(sheet=sheet), progress=progress, cancelled=cancelled
-            )
+            return swio.read_table(path, reading, progress=progress, cancelled=cancelled)
 
         return read
 

@@ -57,6 +57,9 @@ def load(doc: dict[str, Any]) -> tuple[Project, str | None]:
     source, relative, size, sha = _source(get(doc, "source", ""))
     read_options = _read_options(obj(get(doc, "read_options", ""), "read_options"))
     columns, headers = _table(obj(get(doc, "table", ""), "table"))
+    for label in read_options.kinds:  # kind corrections (absent in older files: none)
+        if label not in columns:
+            raise Invalid(f"read_options.kinds.{label}", "is not a column of the table")
     settings, rows_fitted = _fit(obj(get(doc, "fit", ""), "fit"), set(columns))
     fitted = rows_fitted is not None
     choices: dict[str, ColumnChoice] = {}

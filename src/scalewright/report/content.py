@@ -32,6 +32,7 @@ from ..engine import (
     histogram,
     mapped_edges,
 )
+from ..engine.number_text import number_text
 from ..errors import Cancelled, ProjectError, ScalewrightError
 from ..io import ReadOptions, Table, read_table
 from ..project import ALL_ROWS, UNSEEN_GROUPS, Project, locate_source, now_iso, options_text
@@ -136,7 +137,7 @@ def shown_value(value: Any) -> str:
 def exact_value(value: Any) -> str:
     """A value at full precision (Python's repr of a float, which reads back bit for bit)."""
     if isinstance(value, float):
-        return repr(value)
+        return number_text(value, "r")
     return shown_value(value)
 
 
@@ -298,7 +299,7 @@ def _parameters(
                 exact = f"all {len(value):,} listed below"
                 title = spec.label[:1].upper() + spec.label[1:]
                 title += f" ({group}), exact, in order" if len(sets) > 1 else ", exact, in order"
-                lists.append((title, ", ".join(repr(float(v)) for v in value)))
+                lists.append((title, ", ".join(number_text(float(v), "r") for v in value)))
             else:
                 exact = exact_value(value)
             rows.append(ParameterRow(group, spec.label, shown, exact))

@@ -14,11 +14,12 @@ from typing import Any
 
 from ..engine import get_method
 from ..engine.method_base import LinearMethod, Steps
+from ..engine.number_text import number_text
 
 
 def _num(value: float) -> str:
     """A number as a person would type it in a formula; negatives in parentheses."""
-    text = repr(float(value)) if not isinstance(value, int) else str(value)
+    text = number_text(float(value), "r") if not isinstance(value, int) else str(value)
     if text.endswith(".0"):
         text = text[:-2]
     return f"({text})" if text.startswith("-") else text

@@ -14,6 +14,8 @@ from html import escape
 
 import numpy as np
 
+from ..engine.number_text import number_text
+
 # The window's colours (gui/theme.py, Okabe-Ito): original units blue, scaled orange.
 ORIGINAL = "#0072B2"
 SCALED = "#E69F00"
@@ -47,8 +49,7 @@ def tick_text(value: float, *, grouped: bool = False) -> str:
     """A short label for an axis tick (no '-0'); ``grouped`` whole numbers get commas."""
     if grouped and value == int(value) and abs(value) < 1e15:
         return f"{int(value):,}"
-    text = f"{value:.4g}"
-    return "0" if text in ("-0", "0") else text
+    return number_text(value, ".4g")
 
 
 def bar_heights(edges: np.ndarray, counts: np.ndarray, usable: np.ndarray):
