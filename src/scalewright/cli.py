@@ -66,6 +66,11 @@ examples:
   scalewright restore harvest.swproj predicted_yield_scaled.csv --as predicted_yield=yield_kg \\
       --name predicted_yield=predicted_yield_kg -o predicted_yield_kg.csv"""
 
+REPORT_EXAMPLES = """\
+examples:
+  scalewright report harvest.swproj -o harvest_report.html
+  scalewright report harvest_2025_scaled.xlsx -o harvest_report.pdf"""
+
 SHOW_EXAMPLES = """\
 examples:
   scalewright show harvest.swproj
@@ -254,6 +259,19 @@ def build_parser() -> argparse.ArgumentParser:
         formatter_class=argparse.RawDescriptionHelpFormatter,
     )
     p.add_argument("project", metavar="PROJECT", help="project file or scaled workbook")
+
+    p = commands.add_parser(
+        "report",
+        help="write a report of a project for colleagues and auditors (.html or .pdf)",
+        description="Write one file that records the project: the data file and its "
+        "fingerprint, the dates, and per column the method, parameters, the formula to "
+        "reverse it, the fit summary, warnings and histograms before and after. The "
+        "histograms need the data file; without it the report says why they are missing.",
+        epilog=REPORT_EXAMPLES,
+        formatter_class=argparse.RawDescriptionHelpFormatter,
+    )
+    p.add_argument("project", metavar="PROJECT_OR_WORKBOOK", help="project file or scaled workbook")
+    _add_output(p, "FILE", "the report to write (.html or .pdf)", True)
     return parser
 
 
@@ -655,6 +673,20 @@ def cmd_show(args: argparse.Namespace) -> int:
     return 0
 
 
+def cmd_report(args: argparse.Namespace) -> int:
+    from .report import check_report_target, write_report
+    from .tasks import load_project_or_workbook
+
+    output = check_report_target(args.output)
+    project = load_project_or_workbook(args.project)
+    with _progress("reading the data") as progress:
+        report = write_report(project, output, progress=progress)
+    print(f"report written to {output}")
+    if report.figures_missing:
+        print(f"  note: {report.figures_missing}")
+    return 0
+
+
 # --------------------------------------------------------------------------- show
 
 
@@ -748,6 +780,7 @@ _COMMANDS: dict[str, Callable[[argparse.Namespace], int]] = {
     "apply": cmd_apply,
     "restore": cmd_restore,
     "show": cmd_show,
+    "report": cmd_report,
     "open": lambda args: _open_window(args.file, args.check_and_quit),
 }
 

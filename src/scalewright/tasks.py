@@ -194,10 +194,12 @@ def check_target(
     *,
     source: str | os.PathLike | None = None,
     project: Project | None = None,
+    formats: Sequence[str] = SUPPORTED_WRITE,
 ) -> Path:
     """The path an output may be written to, or :class:`WriteError` saying why not.
 
-    Refused: a project file name, a format that cannot be written, a folder, ``source``
+    Refused: a project file name, a format not in ``formats`` (the data formats unless
+    told otherwise, for example the report's), a folder, ``source``
     (the file the data is read from), and, for ``project``, the file it was loaded from
     (a project file or a scaled workbook) and the data file it was fitted on. Nothing is
     written; every job that writes an output checks here first, and so may a dialog.
@@ -207,15 +209,12 @@ def check_target(
     if suffix == SUFFIX:
         raise WriteError(
             target,
-            "this name is for project files; choose a data file name ("
-            + ", ".join(SUPPORTED_WRITE)
-            + ")",
+            "this name is for project files; choose a data file name (" + ", ".join(formats) + ")",
         )
-    if suffix not in SUPPORTED_WRITE:
+    if suffix not in formats:
         raise WriteError(
             target,
-            f"cannot write '{suffix or 'no extension'}' files; use one of "
-            + ", ".join(SUPPORTED_WRITE),
+            f"cannot write '{suffix or 'no extension'}' files; use one of " + ", ".join(formats),
         )
     ensure_not_source(target, source)
     if project is not None:
