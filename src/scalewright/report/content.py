@@ -32,6 +32,7 @@ from ..engine import (
     histogram,
     mapped_edges,
 )
+from ..engine.histogram import bar_heights
 from ..engine.number_text import number_text
 from ..errors import Cancelled, ProjectError, ScalewrightError
 from ..io import ReadOptions, Table, read_table
@@ -337,7 +338,7 @@ def _figures(
         ),
     ]
     usable = np.isfinite(scaled[:-1]) & np.isfinite(scaled[1:])
-    per_unit = svg.bar_heights(scaled, h.counts, usable)[1]
+    per_unit = bar_heights(scaled, h.counts, usable)[1]
     notes = [
         f"Every row's value, fitted or not ({n:,}, blanks left out), in {len(h.counts)} bars; the scaled side "
         "is the same bars on edges mapped through the transform"

@@ -14,6 +14,7 @@ from html import escape
 
 import numpy as np
 
+from ..engine.histogram import COUNT_PER_UNIT, bar_heights
 from ..engine.number_text import number_text
 
 # The window's colours (gui/theme.py, Okabe-Ito): original units blue, scaled orange.
@@ -22,7 +23,6 @@ SCALED = "#E69F00"
 AXIS = "#444444"
 GRID = "#e4e4e4"
 FONT = "DejaVu Sans, Arial, Helvetica, sans-serif"
-COUNT_PER_UNIT = "count per unit (bars differ in width)"  # the window's words
 
 WIDTH = 460
 HEIGHT = 260
@@ -50,18 +50,6 @@ def tick_text(value: float, *, grouped: bool = False) -> str:
     if grouped and value == int(value) and abs(value) < 1e15:
         return f"{int(value):,}"
     return number_text(value, ".4g")
-
-
-def bar_heights(edges: np.ndarray, counts: np.ndarray, usable: np.ndarray):
-    """(heights, per_unit): the counts when the bars are equally wide, else the count per
-    unit of width, so that a bar's area is its number of values and a bar widened by the
-    transform does not look larger than it is (the window's rule, gui/histograms.py)."""
-    widths = (edges[1:] - edges[:-1])[usable]
-    if widths.size == 0 or np.all(np.abs(widths - widths[0]) <= 1e-9 * abs(widths[0])):
-        return counts.astype(np.float64), False
-    with np.errstate(divide="ignore", invalid="ignore"):
-        x0, x1 = edges[:-1], edges[1:]
-        return np.where(usable & (x1 > x0), counts / (x1 - x0), 0.0), True
 
 
 def _fmt(v: float) -> str:
