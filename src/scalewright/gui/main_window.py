@@ -871,8 +871,11 @@ class MainWindow(QMainWindow):
         """Help > Method guide: the README's method guide, from the same source."""
         from .guide_dialog import GuideDialog
 
-        self.guide_dialog = GuideDialog(self)
-        self.guide_dialog.open()
+        # Not modal: the guide can stay open beside the window while choosing methods.
+        if getattr(self, "guide_dialog", None) is None:
+            self.guide_dialog = GuideDialog(self)
+        self.guide_dialog.show()
+        self.guide_dialog.raise_()
 
     def show_about(self) -> None:
         from .about_dialog import AboutDialog
