@@ -37,6 +37,13 @@ CAUTION_KEEP_PROJECT = (
     "answers can be turned back into original units and the scaling checked later."
 )
 
+#: The same cautions, short enough for a hint in the window's narrow method panel (the
+#: whole caution is the hint's tooltip).
+HINT_FIT_ON_TRAINING = (
+    "Learn from the training rows only; new files get these saved values, never a new fit."
+)
+HINT_SHAPE = "It changes the shape of the values on purpose (hover for more)."
+
 BEGIN_MARK = (
     "<!-- method guide: written by `python -m scalewright.guide`; edit the methods, not this -->"
 )

@@ -11,7 +11,13 @@ from dialog_helpers import save_screenshot
 from PySide6.QtWidgets import QTextBrowser
 
 from scalewright.engine import METHODS
-from scalewright.guide import CAUTION_FIT_ON_TRAINING, CAUTION_SHAPE, guide_markdown
+from scalewright.guide import (
+    CAUTION_FIT_ON_TRAINING,
+    CAUTION_SHAPE,
+    HINT_FIT_ON_TRAINING,
+    HINT_SHAPE,
+    guide_markdown,
+)
 
 pytestmark = [pytest.mark.gui]
 
@@ -38,9 +44,11 @@ def test_help_menu_opens_the_method_guide_from_the_one_source(qtbot, window, tmp
 def test_the_method_panel_says_when_a_method_changes_the_shape(qtbot, opened):
     panel = opened.method_panel
     opened.columns.select_labels(["yield_kg"])
-    assert panel.fit_note.text() == CAUTION_FIT_ON_TRAINING
+    assert panel.fit_note.text() == HINT_FIT_ON_TRAINING
+    assert panel.fit_note.toolTip() == CAUTION_FIT_ON_TRAINING  # the guide's whole words
+    assert panel.shape_note.toolTip() == CAUTION_SHAPE
     assert panel.fit_note.isVisible()
     for method_id, shaped in (("zscore", False), ("boxcox", True), ("quantile", True)):
         panel.set_method(method_id)
         assert panel.shape_note.isVisible() == shaped, method_id
-        assert panel.shape_note.text() == (CAUTION_SHAPE if shaped else "")
+        assert panel.shape_note.text() == (HINT_SHAPE if shaped else "")

@@ -105,7 +105,7 @@ def walk(qtbot, window, wait_job, tmp_path: Path) -> dict[str, str]:
     w.method_panel.set_fit_where("split", "train")
     click_row(qtbot, w, "yield_kg")
     qtbot.waitUntil(lambda: not w.session.fits_pending, timeout=30000)
-    shown["fit_note"] = w.method_panel.fit_note.text()
+    shown["fit_note"] = w.method_panel.fit_note.toolTip()
     shown["yield_fitted"] = w.method_panel.fitted.text()
     shown["yield_params"] = w.session.fitted_column("yield_kg").pooled.params
     shown["histogram_note"] = w.histograms.note.text()

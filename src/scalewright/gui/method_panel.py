@@ -25,7 +25,7 @@ from PySide6.QtWidgets import (
 
 from ..engine import METHODS, FitSettings, OptionSpec, get_method
 from ..errors import ScalewrightError
-from ..guide import CAUTION_FIT_ON_TRAINING, CAUTION_SHAPE
+from ..guide import CAUTION_FIT_ON_TRAINING, CAUTION_SHAPE, HINT_FIT_ON_TRAINING, HINT_SHAPE
 from ..session import FIT_WHERE_KINDS, Session
 from . import commands, theme
 
@@ -87,7 +87,7 @@ class MethodPanel(QWidget):
         outer.addWidget(self.when)
         self.shape_note = _label("", "hint")
         self.shape_note.setObjectName("shapeNote")
-        self.shape_note.setToolTip("Why the scaled histogram has another shape")
+        self.shape_note.setToolTip(CAUTION_SHAPE)
         self.shape_note.hide()
         outer.addWidget(self.shape_note)
 
@@ -148,9 +148,9 @@ class MethodPanel(QWidget):
         form.addRow("Group by", self.group_box)
         self.settings_problem = _label("", "warning")
         form.addRow(self.settings_problem)
-        self.fit_note = _label(CAUTION_FIT_ON_TRAINING, "hint")
+        self.fit_note = _label(HINT_FIT_ON_TRAINING, "hint")
         self.fit_note.setObjectName("fitNote")
-        self.fit_note.setToolTip("Why the scaling is learned from the training rows only")
+        self.fit_note.setToolTip(CAUTION_FIT_ON_TRAINING)
         form.addRow(self.fit_note)
         outer.addWidget(fit_box)
         outer.addStretch(1)
@@ -283,7 +283,7 @@ class MethodPanel(QWidget):
         if method is not None:
             self.summary.setText(method.summary)
             self.when.setText(f"When to use: {method.when_to_use}")
-            self.shape_note.setText(CAUTION_SHAPE if method.changes_shape else "")
+            self.shape_note.setText(HINT_SHAPE if method.changes_shape else "")
             self.shape_note.setVisible(method.changes_shape)
         else:
             self.shape_note.hide()
