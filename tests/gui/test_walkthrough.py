@@ -15,6 +15,7 @@ from __future__ import annotations
 
 import os
 import re
+import shutil
 from pathlib import Path
 
 import numpy as np
@@ -35,6 +36,12 @@ SAMPLE = ROOT / "sample_data"
 README = ROOT / "README.md"
 README_MEAN = 75.54385054488843  # sample_data/README.md
 README_SD = 36.650738430940336  # sample_data/README.md
+# Resolved now: the walk-through changes the working folder.
+SHOTS = (
+    Path(os.environ["SCALEWRIGHT_SCREENSHOTS"]).resolve()
+    if os.environ.get("SCALEWRIGHT_SCREENSHOTS")
+    else None
+)
 CHOICES = {"yield_kg": "zscore", "irrigation_l_per_week": "minmax", "soil_ph": "minmax"}
 
 
@@ -50,9 +57,8 @@ def grab(widget, name: str, tmp_path: Path) -> None:
     pixmap = widget.grab()
     assert not pixmap.isNull()
     assert pixmap.save(str(tmp_path / f"{name}.png"))
-    folder = os.environ.get("SCALEWRIGHT_SCREENSHOTS")
-    if folder:
-        pixmap.save(str(Path(folder) / f"{name}.png"))
+    if SHOTS is not None:
+        pixmap.save(str(SHOTS / f"{name}.png"))
 
 
 def click_row(qtbot, window, label: str) -> None:
@@ -81,14 +87,21 @@ def save_dialog(qtbot, dialog, target: Path) -> None:
         qtbot.mouseClick(dialog.save_button, Qt.MouseButton.LeftButton)
 
 
-def walk(qtbot, window, wait_job, tmp_path: Path) -> dict[str, str]:
-    """Do the walk-through; return what the window showed at each step, by name."""
+def walk(qtbot, window, wait_job, tmp_path: Path, monkeypatch) -> dict[str, str]:
+    """Do the walk-through; return what the window showed at each step, by name.
+
+    It works in a folder holding copies of the sample files, with file names typed as
+    the user sees them, so that the screenshots show plain names and not test paths.
+    """
+    for name in ("harvest_2025.csv", "harvest_2026.csv", "predicted_yield_scaled.csv"):
+        shutil.copy(SAMPLE / name, tmp_path / name)
+    monkeypatch.chdir(tmp_path)
     w = window
     w.resize(1280, 800)
     shown: dict[str, str] = {}
 
     # 1. File > Open data..., harvest_2025.csv; the read dialog shows how it will be read.
-    w.ask_open_path = lambda *a: str(SAMPLE / "harvest_2025.csv")
+    w.ask_open_path = lambda *a: str(tmp_path / "harvest_2025.csv")
     w.act_open.trigger()
     dialog = w.import_dialog
     opts = dialog.options()
@@ -130,7 +143,7 @@ def walk(qtbot, window, wait_job, tmp_path: Path) -> dict[str, str]:
     w.act_apply.trigger()
     qtbot.waitUntil(lambda: w.apply_dialog is not None, timeout=30000)
     apply = w.apply_dialog
-    type_path(qtbot, apply, SAMPLE / "harvest_2026.csv")
+    type_path(qtbot, apply, Path("harvest_2026.csv"))
     shown["apply_reports"] = apply.preview_reports()
     shown["apply_summary"] = apply.summary_label.text()
     check = apply.clip_check
@@ -138,9 +151,9 @@ def walk(qtbot, window, wait_job, tmp_path: Path) -> dict[str, str]:
     assert apply.clip()
     shown["clip_note"] = apply.clip_note.text()
     apply.output_row.edit.clear()
-    qtbot.keyClicks(apply.output_row.edit, str(tmp_path / "harvest_2026_scaled.csv"))
+    qtbot.keyClicks(apply.output_row.edit, "harvest_2026_scaled.csv")
     grab(apply, "walkthrough_3_apply", tmp_path)
-    save_dialog(qtbot, apply, tmp_path / "harvest_2026_scaled.csv")
+    save_dialog(qtbot, apply, Path("harvest_2026_scaled.csv"))
     shown["applied"] = apply.result_text()
     apply.close()
 
@@ -148,20 +161,22 @@ def walk(qtbot, window, wait_job, tmp_path: Path) -> dict[str, str]:
     w.act_restore.trigger()
     qtbot.waitUntil(lambda: w.restore_dialog is not None, timeout=30000)
     restore = w.restore_dialog
-    type_path(qtbot, restore, SAMPLE / "predicted_yield_scaled.csv")
+    type_path(qtbot, restore, Path("predicted_yield_scaled.csv"))
     choose(qtbot, restore.mapping_box("predicted_yield"), "yield_kg")
     restore.output_row.edit.clear()
-    qtbot.keyClicks(restore.output_row.edit, str(tmp_path / "predicted_yield_kg.csv"))
+    qtbot.keyClicks(restore.output_row.edit, "predicted_yield_kg.csv")
     shown["restore_preview"] = restore.preview_frame()
     grab(restore, "walkthrough_4_restore", tmp_path)
-    save_dialog(qtbot, restore, tmp_path / "predicted_yield_kg.csv")
+    save_dialog(qtbot, restore, Path("predicted_yield_kg.csv"))
     shown["restored"] = restore.result_text()
     restore.close()
     return shown
 
 
-def test_the_readme_walkthrough_shows_what_the_window_shows(qtbot, window, wait_job, tmp_path):
-    shown = walk(qtbot, window, wait_job, tmp_path)
+def test_the_readme_walkthrough_shows_what_the_window_shows(
+    qtbot, window, wait_job, tmp_path, monkeypatch
+):
+    shown = walk(qtbot, window, wait_job, tmp_path, monkeypatch)
     print(shown)  # seen with -s when the README needs new figures
     readme = walkthrough_section()
     raw_2025 = pd.read_csv(SAMPLE / "harvest_2025.csv", dtype={"tree_code": str})
