@@ -59,9 +59,7 @@ def _options_words(method: Method) -> list[str]:
         elif isinstance(default, float):
             default = f"{default:g}"
         choices = (
-            " (" + ", ".join(f"`{c}`: {spec.choice_words(c)}" for c in spec.choices) + ")"
-            if spec.choices
-            else ""
+            " (choices: " + ", ".join(f"`{c}`" for c in spec.choices) + ")" if spec.choices else ""
         )
         words.append(
             f"*{spec.shown_label}* (`{spec.name}`, default `{default}`): {spec.help}{choices}"
@@ -78,7 +76,10 @@ def method_section(method: Method, level: int = 3) -> str:
     lines.append(f"- **When to use it:** {method.when_to_use}")
     lines.append(f"- **What it assumes:** {method.assumes}")
     lines.append(f"- **How it reverses:** {method.reverses} By hand: `{method.inverse_formula}`")
-    params = ", ".join(f"`{p.name}` ({p.label})" for p in method.param_specs)
+    params = ", ".join(
+        f"`{p.name}` ({p.label}{'; not kept when ' + p.absent_when if p.absent_when else ''})"
+        for p in method.param_specs
+    )
     if params:
         lines.append(f"- **Kept in the project:** {params}")
     options = _options_words(method)

@@ -599,8 +599,9 @@ class BoxCox(_PowerMethod):
         "Every value is above 0; a single best power (lambda) makes the column roughly bell-shaped."
     )
     reverses = (
-        "Within floating-point rounding: undo the standardizing with the saved mean and "
-        "sd, then the power with the saved lambda."
+        "Fully, to floating-point rounding: undo the standardizing with the saved mean "
+        "and sd, then the power with the saved lambda (the fit warns when an extreme lambda "
+        "makes this inexact)."
     )
     changes_shape = True
     inverse_formula = "x = (lambda * y' + 1)^(1/lambda), or exp(y') if lambda = 0; y' = y * sd + mean if standardized"
@@ -647,9 +648,9 @@ class YeoJohnson(_PowerMethod):
     when_to_use = "For skewed columns that contain zeros or negative values."
     assumes = "Any sign is fine; a single best power (lambda) makes the column roughly bell-shaped."
     reverses = (
-        "Within floating-point rounding: undo the standardizing with the saved mean and "
-        "sd, then the power with the saved lambda, separately for values below and above "
-        "0."
+        "Fully, to floating-point rounding: undo the standardizing with the saved mean "
+        "and sd, then the power with the saved lambda, separately for values below and "
+        "above 0 (the fit warns when an extreme lambda makes this inexact)."
     )
     changes_shape = True
     inverse_formula = (
