@@ -19,6 +19,7 @@ import shutil
 from pathlib import Path
 
 import numpy as np
+import openpyxl
 import pandas as pd
 import pytest
 from dialog_helpers import choose
@@ -214,6 +215,18 @@ def test_the_readme_walkthrough_shows_what_the_window_shows(
 
     # Steps 4-5: exported and saved, with the reminder to keep the project.
     assert "Exported harvest_2025_scaled.xlsx" in shown["exported"]
+    book = openpyxl.load_workbook(tmp_path / "harvest_2025_scaled.xlsx", read_only=True)
+    sheets = {ws.title: ws.sheet_state for ws in book.worksheets}
+    assert sheets == {"data": "visible", "parameters": "visible", "scalewright project": "hidden"}
+    assert book["data"].max_row == len(raw_2025) + 1  # a header, then every row
+    book.close()
+    for name in (
+        "`data` sheet",
+        f"all {len(raw_2025):,} rows",
+        "`parameters` sheet",
+        "hidden sheet",
+    ):
+        assert name in " ".join(readme.split()), name
     assert shown["saved"] == f"Saved harvest_2025.swproj. {CAUTION_KEEP_PROJECT}"
     assert "harvest_2025.swproj" in readme
 
