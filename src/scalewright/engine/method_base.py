@@ -124,6 +124,11 @@ class Method:
     option_specs: tuple[OptionSpec, ...] = ()
     param_specs: tuple[ParamSpec, ...] = ()
     inverse_formula: str = ""  # how to reverse by hand, in terms of the parameter names
+    assumes: str = ""  # one sentence: what the values must be like for it to work well
+    reverses: str = ""  # one sentence in plain words: how scaled values turn back
+    #: The method changes the shape of the distribution on purpose (the power transforms
+    #: and quantile): the guide and the method panel say so.
+    changes_shape: bool = False
 
     #: A straight line y = a*x + b: scaled summary figures follow from the original ones.
     linear: bool = False

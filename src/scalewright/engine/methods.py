@@ -44,6 +44,8 @@ class LeaveAsIs(LinearMethod):
     name = "leave as is"
     summary = "Keeps the values exactly as they are."
     when_to_use = "For columns the model should see in their own units, and for codes."
+    assumes = "Nothing: any numbers are kept."
+    reverses = "Nothing to reverse: the values are the original ones."
     inverse_formula = "x = y"
 
     def fit(self, x, options):
@@ -84,6 +86,14 @@ class MinMax(LinearMethod):
         ParamSpec("max", "number", "largest"),
         ParamSpec("low", "number", "smallest becomes"),
         ParamSpec("high", "number", "largest becomes"),
+    )
+    assumes = (
+        "The fitted rows hold the smallest and largest values the column will ever have; "
+        "one extreme value squeezes all the others together."
+    )
+    reverses = (
+        "Fully, to floating-point rounding, by stretching back with the saved smallest and largest values; a "
+        "clipped value comes back as the end of the fitted range, not as what it was."
     )
     inverse_formula = "x = (y - low) / (high - low) * (max - min) + min"
     fit_ignores_nan = True
@@ -162,6 +172,11 @@ class ZScore(LinearMethod):
         ParamSpec("sd", "number", "sd"),
         ParamSpec("ddof", "int", "sd divides by n minus", says=_sd_words, brief=False),
     )
+    assumes = (
+        "The mean and sd describe the column well: roughly symmetric values without "
+        "extreme outliers."
+    )
+    reverses = "Fully, to floating-point rounding: multiply by the saved sd and add the saved mean."
     inverse_formula = "x = y * sd + mean"
 
     def fit(self, x, options):
@@ -214,6 +229,13 @@ class DecimalScaling(LinearMethod):
     summary = "Moves the decimal point so that every value lies between -1 and 1."
     when_to_use = "When you want values below 1 in size while keeping them easy to read back."
     param_specs = (ParamSpec("j", "int", "divided by 10 to the power"),)
+    assumes = (
+        "Nothing about the shape; the fitted rows hold the largest size the column will "
+        "have, or later values can exceed 1 in size."
+    )
+    reverses = (
+        "Fully, to floating-point rounding: move the decimal point back by the saved power of ten."
+    )
     inverse_formula = "x = y * 10^j"
     fit_ignores_nan = True
 
@@ -281,6 +303,11 @@ class Robust(LinearMethod):
         ParamSpec("scale", "number", "spread (third \u2212 first quartile)"),
         ParamSpec("quantile_rule", "text", "quartiles by", brief=False),
     )
+    assumes = (
+        "The middle half of the values is spread out (a column that is mostly one value "
+        "has an IQR of 0)."
+    )
+    reverses = "Fully, to floating-point rounding: multiply by the saved spread (q3 - q1) and add the saved median."
     inverse_formula = "x = y * scale + median   (scale = q3 - q1)"
     slow_fit = True  # quartiles sort the values
 
@@ -334,6 +361,8 @@ class MaxAbs(LinearMethod):
     summary = "Divides by the largest absolute value, so values lie between -1 and 1."
     when_to_use = "For columns with many zeros or meaningful signs: zeros stay zero."
     param_specs = (ParamSpec("maxabs", "number", "largest size"),)
+    assumes = 'Zero means "none" and the sign matters; the fitted rows hold the largest size.'
+    reverses = "Fully, to floating-point rounding: multiply by the saved largest size."
     inverse_formula = "x = y * maxabs"
     fit_ignores_nan = True
 
@@ -402,6 +431,14 @@ class Logarithm(Method):
     param_specs = (
         ParamSpec("base", "text", "logarithm base", brief=False),
         ParamSpec("shift", "number", "added first"),
+    )
+    assumes = (
+        "Values above 0 (or a shift that lifts them above 0) whose ratios matter more "
+        "than their differences."
+    )
+    reverses = (
+        "Fully, to floating-point rounding: raise the base to the scaled value and "
+        "take off the shift."
     )
     inverse_formula = "x = base^y - shift"
     slow_fit = True  # the scaled figures need a pass over every value
@@ -558,6 +595,15 @@ class BoxCox(_PowerMethod):
         "standardizes them (mean 0, sd 1) unless you switch that off."
     )
     when_to_use = "For strictly positive, skewed columns (for other signs use Yeo-Johnson)."
+    assumes = (
+        "Every value is above 0; a single best power (lambda) makes the column roughly bell-shaped."
+    )
+    reverses = (
+        "Fully, to floating-point rounding: undo the standardizing with the saved mean "
+        "and sd, then the power with the saved lambda (the fit warns when an extreme lambda "
+        "makes this inexact)."
+    )
+    changes_shape = True
     inverse_formula = "x = (lambda * y' + 1)^(1/lambda), or exp(y') if lambda = 0; y' = y * sd + mean if standardized"
 
     def fit(self, x, options):
@@ -600,6 +646,13 @@ class YeoJohnson(_PowerMethod):
         "standardizes them (mean 0, sd 1) unless you switch that off."
     )
     when_to_use = "For skewed columns that contain zeros or negative values."
+    assumes = "Any sign is fine; a single best power (lambda) makes the column roughly bell-shaped."
+    reverses = (
+        "Fully, to floating-point rounding: undo the standardizing with the saved mean "
+        "and sd, then the power with the saved lambda, separately for values below and "
+        "above 0 (the fit warns when an extreme lambda makes this inexact)."
+    )
+    changes_shape = True
     inverse_formula = (
         "for y' >= 0: x = (lambda * y' + 1)^(1/lambda) - 1; "
         "for y' < 0: x = 1 - (1 - (2 - lambda) * y')^(1/(2 - lambda)); "

@@ -58,6 +58,16 @@ class Quantile(Method):
         ParamSpec("shape", "text", "shaped", brief=False),
         ParamSpec("quantiles", "numbers", "fitted quantiles", says=_quantile_words),
     )
+    assumes = (
+        "Only the order of the values matters, and the fitted rows cover the range new "
+        "values will have."
+    )
+    reverses = (
+        "Within the fitted range, to floating-point rounding: a rank is turned back by "
+        "interpolating between the saved quantiles. A value that was outside the fitted "
+        "range comes back as its end, not as what it was."
+    )
+    changes_shape = True
     inverse_formula = (
         "find y (for the normal shape first take the normal distribution's probability "
         "of y) between the ranks i/(n-1) and (i+1)/(n-1), then interpolate linearly "

@@ -29,6 +29,7 @@ from PySide6.QtWidgets import (
 from .. import engine, tasks
 from .. import io as swio
 from ..engine.number_text import number_text
+from ..guide import CAUTION_CLIPPING
 from . import theme
 from .widgets import MUTED_STYLE, escape_html, plural, set_message
 from .writing_dialog import WritingDialog, saved_parameters
@@ -121,6 +122,11 @@ class ApplyDialog(WritingDialog):
         report_layout.addWidget(self.summary_label)
         report_layout.addWidget(self.table, 1)
         report_layout.addWidget(self.clip_check)
+        self.clip_note = QLabel(CAUTION_CLIPPING)
+        self.clip_note.setObjectName("clipNote")
+        self.clip_note.setWordWrap(True)
+        self.clip_note.setProperty("role", "hint")
+        report_layout.addWidget(self.clip_note)
 
         out_box = self.make_output_box(
             "Save the scaled file as",

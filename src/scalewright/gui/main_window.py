@@ -33,8 +33,8 @@ from PySide6.QtWidgets import (
 
 from .. import io as swio
 from .. import projects, tasks
-from ..engine import METHODS
 from ..errors import Cancelled, ScalewrightError
+from ..guide import CAUTION_KEEP_PROJECT
 from ..project import load_project, save_project
 from ..projects import PROJECT_SUFFIX
 from ..session import Session, column_facts
@@ -279,10 +279,10 @@ class MainWindow(QMainWindow):
         self.act_history.setText("List of changes")
         self.act_history.setToolTip("Show every change made, to go back to any of them")
         self.act_help = self._action(
-            "About the methods",
+            "Method guide",
             self.show_methods_help,
             QKeySequence.StandardKey.HelpContents,
-            "What each scaling method does and when to use it",
+            "What each scaling method does, when to use it, what it assumes, how it reverses",
         )
         self.act_about = self._action("About Scalewright", self.show_about)
 
@@ -691,7 +691,8 @@ class MainWindow(QMainWindow):
                 self.session.set_dirty(False)
             self.add_recent(path)
             self._remember_dir(path)
-            self.notify(f"Saved {path.name}")
+            # Said once, at the moment it matters (the guide says it too).
+            self.notify(f"Saved {path.name}. {CAUTION_KEEP_PROJECT}", 15000)
             self.file_written.emit(path)
 
         job = self.jobs.run(f"Saving {path.name}", work, done, self.show_message)
@@ -873,16 +874,14 @@ class MainWindow(QMainWindow):
     # ================================================================== help
 
     def show_methods_help(self) -> None:
-        rows = "".join(
-            f"<p><b>{m.name}</b>: {m.summary}<br><i>When to use:</i> {m.when_to_use}</p>"
-            for m in METHODS.values()
-        )
-        box = QMessageBox(self)
-        box.setWindowTitle("About the methods")
-        box.setTextFormat(Qt.TextFormat.RichText)
-        box.setText(rows)
-        box.open()
-        self.last_message = box
+        """Help > Method guide: the README's method guide, from the same source."""
+        from .guide_dialog import GuideDialog
+
+        # Not modal: the guide can stay open beside the window while choosing methods.
+        if getattr(self, "guide_dialog", None) is None:
+            self.guide_dialog = GuideDialog(self)
+        self.guide_dialog.show()
+        self.guide_dialog.raise_()
 
     def show_about(self) -> None:
         from .about_dialog import AboutDialog

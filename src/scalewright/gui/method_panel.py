@@ -25,6 +25,7 @@ from PySide6.QtWidgets import (
 
 from ..engine import METHODS, FitSettings, OptionSpec, get_method
 from ..errors import ScalewrightError
+from ..guide import CAUTION_FIT_ON_TRAINING, CAUTION_SHAPE, HINT_FIT_ON_TRAINING, HINT_SHAPE
 from ..session import FIT_WHERE_KINDS, Session
 from . import commands, theme
 
@@ -84,6 +85,11 @@ class MethodPanel(QWidget):
         self.when.setToolTip("When the method is a good choice")
         outer.addWidget(self.summary)
         outer.addWidget(self.when)
+        self.shape_note = _label("", "hint")
+        self.shape_note.setObjectName("shapeNote")
+        self.shape_note.setToolTip(CAUTION_SHAPE)
+        self.shape_note.hide()
+        outer.addWidget(self.shape_note)
 
         self.options_box = QGroupBox("Options")
         self.options_box.setToolTip("Settings of the chosen method")
@@ -142,6 +148,10 @@ class MethodPanel(QWidget):
         form.addRow("Group by", self.group_box)
         self.settings_problem = _label("", "warning")
         form.addRow(self.settings_problem)
+        self.fit_note = _label(HINT_FIT_ON_TRAINING, "hint")
+        self.fit_note.setObjectName("fitNote")
+        self.fit_note.setToolTip(CAUTION_FIT_ON_TRAINING)
+        form.addRow(self.fit_note)
         outer.addWidget(fit_box)
         outer.addStretch(1)
         for box in (self.method_box, self.where_column, self.where_value, self.group_box):
@@ -273,7 +283,10 @@ class MethodPanel(QWidget):
         if method is not None:
             self.summary.setText(method.summary)
             self.when.setText(f"When to use: {method.when_to_use}")
+            self.shape_note.setText(HINT_SHAPE if method.changes_shape else "")
+            self.shape_note.setVisible(method.changes_shape)
         else:
+            self.shape_note.hide()
             self.summary.setText(
                 "The selected columns use different methods; choose one to give it to all."
                 if has
