@@ -13,7 +13,7 @@ from PySide6.QtGui import QDropEvent, QMouseEvent
 from PySide6.QtWidgets import QApplication
 
 from scalewright import tasks
-from scalewright.engine import ColumnChoice, FitSettings, apply
+from scalewright.engine import METHODS, ColumnChoice, FitSettings, apply
 from scalewright.gui.column_list import KIND, METHOD, NAME, WARN
 from scalewright.project import load_project
 
@@ -937,3 +937,15 @@ def test_kept_and_refitted_columns_each_record_where_their_parameters_came_from(
     reloaded = load_project(third)
     assert reloaded.fitted_on("yield_kg") == kept
     assert reloaded.fitted_on("soil_ph") == refitted
+
+
+def test_the_method_panel_fits_its_column_for_every_method(qtbot, opened):
+    """A long choice ('sample (divides by n - 1)') made the panel need 369 px in a column
+    of 300 to 330 at 1280 x 800, cutting it at the window's edge (seen under Xvfb): every
+    method's panel now fits the narrowest the column gets."""
+    w = opened
+    click_row(qtbot, w, "yield_kg")
+    for method_id in METHODS:
+        choose_method(w, method_id)
+        need = w.method_panel.minimumSizeHint().width()
+        assert need <= w.method_scroll.minimumWidth(), (method_id, need)

@@ -162,8 +162,8 @@ class ZScore(LinearMethod):
             choices=("sample", "population"),
             label="Standard deviation",
             choice_labels={
-                "sample": "sample (divides by n \u2212 1)",
-                "population": "population (divides by n)",
+                "sample": "sample (n \u2212 1)",
+                "population": "population (n)",
             },
         ),
     )
@@ -501,7 +501,7 @@ class _PowerMethod(Method):
             True,
             "also subtract the mean and divide by the sd afterwards (the default)",
             kind="yes/no",
-            label="Standardize afterwards (mean 0, sd 1)",
+            label="Standardize (mean 0, sd 1)",
         ),
     )
     param_specs = (

@@ -34,6 +34,18 @@ NO_GROUPS = "no groups"
 MAX_FIT_VALUES = 50  # columns with more different values are not offered for choosing rows
 
 
+def _combo() -> QComboBox:
+    """A choice box the panel can narrow: sized by the panel, not by its longest entry (a
+    long entry such as 'sample (divides by n - 1)' pushed the panel past the window's edge;
+    the open list still shows entries whole)."""
+    box = QComboBox()
+    box.setSizeAdjustPolicy(QComboBox.SizeAdjustPolicy.AdjustToMinimumContentsLengthWithIcon)
+    box.setMinimumContentsLength(8)
+    box.setSizePolicy(QSizePolicy.Policy.Ignored, QSizePolicy.Policy.Fixed)
+    box.setMinimumWidth(90)
+    return box
+
+
 def _label(text: str, role: str | None = None, wrap: bool = True) -> QLabel:
     w = QLabel(text)
     w.setWordWrap(wrap)
@@ -64,7 +76,7 @@ class MethodPanel(QWidget):
 
         row = QHBoxLayout()
         row.addWidget(QLabel("Scale with"))
-        self.method_box = QComboBox()
+        self.method_box = _combo()
         for m in METHODS.values():
             self.method_box.addItem(m.name, m.id)
             self.method_box.setItemData(
@@ -125,13 +137,13 @@ class MethodPanel(QWidget):
         fit_box.setToolTip("Which rows the scaling is learned from; it is then used on every row")
         form = QFormLayout(fit_box)
         form.setSpacing(theme.SPACING)
-        self.where_column = QComboBox()
+        self.where_column = _combo()
         self.where_column.setToolTip(
             "Learn the scaling only from rows with a certain value in this column "
             "(for example only the training rows), then use it on every row"
         )
         self.where_column.activated.connect(self._on_where_column)
-        self.where_value = QComboBox()
+        self.where_value = _combo()
         self.where_value.setToolTip("The value the rows must have")
         self.where_value.setPlaceholderText("choose a value")
         self.where_value.activated.connect(self._on_where_value)
@@ -139,7 +151,7 @@ class MethodPanel(QWidget):
         self.is_label.setAlignment(Qt.AlignmentFlag.AlignRight | Qt.AlignmentFlag.AlignVCenter)
         form.addRow("Fit on rows where", self.where_column)
         form.addRow(self.is_label, self.where_value)
-        self.group_box = QComboBox()
+        self.group_box = _combo()
         self.group_box.setToolTip(
             "Learn one set of scaling values per value of this column (for example per "
             "orchard); groups not seen later use the values learned from all rows"
@@ -403,7 +415,7 @@ class MethodPanel(QWidget):
             w = QCheckBox()
             w.toggled.connect(lambda v, n=name: self._on_option(n, v))
         else:
-            w = QComboBox()
+            w = _combo()
             for choice in spec.choices:
                 w.addItem(spec.choice_words(choice), choice)
             w.activated.connect(lambda _i, n=name, box=w: self._on_option(n, box.currentData()))
