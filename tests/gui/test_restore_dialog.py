@@ -351,6 +351,7 @@ def test_a_restored_column_gets_the_name_typed_for_it(qtbot, make_dialog, projec
     edit.selectAll()
     qtbot.keyClicks(edit, "predicted_yield_kg")
     assert dialog.names() == {"predicted_yield": "predicted_yield_kg"}
+    save_screenshot(dialog, "restore_dialog_new_names", tmp_path)
     save_and_wait(qtbot, dialog)
     got = pd.read_csv(target, dtype={"tree_code": str})
     scaled = pd.read_csv(PREDICTIONS, dtype={"tree_code": str})
