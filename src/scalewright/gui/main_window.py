@@ -46,7 +46,7 @@ from ..errors import Cancelled, ScalewrightError
 from ..project import load_project, save_project
 from ..projects import PROJECT_SUFFIX
 from ..session import Session, column_facts
-from . import commands, file_dialogs, theme
+from . import commands, file_dialogs, kind_correction, theme
 from .apply_dialog import ApplyDialog
 from .column_list import ColumnList
 from .errors import show_error
@@ -94,6 +94,7 @@ class MainWindow(QMainWindow):
         self._fit_to_screen(1360, 860)
 
         self.columns = ColumnList(self.session)
+        self.columns.kind_chosen.connect(self.correct_kind)
         self.method_panel = MethodPanel(self.session, self.stack)
         self.histograms = HistogramPanel(self.session)
         self.preview = PreviewPanel(self.session)
@@ -838,6 +839,12 @@ class MainWindow(QMainWindow):
         self.restore_dialog = dialog
 
     # ================================================================== edit helpers
+
+    def correct_kind(self, label: str, kind: str):
+        """Read a column as another kind (the file is read again; one undoable step)."""
+        if self.session.table is None or self.jobs.busy:
+            return None
+        return kind_correction.start(self, label, kind)
 
     def leave_selected(self) -> None:
         commands.set_method(self.stack, self.session, self.session.selection, "none")
