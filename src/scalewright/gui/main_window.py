@@ -108,7 +108,8 @@ class MainWindow(QMainWindow):
         lay.addWidget(self.columns, 1)
         self.columns_hint = QLabel(
             "Click a column to choose how to scale it; Ctrl+click or Shift+click to choose "
-            "several at once. Greyed columns cannot be scaled: hover them to see why."
+            "several at once. Greyed columns cannot be scaled: hover them to see why, and "
+            "right-click one to read it as another kind (number, identifier, text, date)."
         )
         self.columns_hint.setWordWrap(True)
         self.columns_hint.setProperty("role", "hint")
