@@ -122,8 +122,9 @@ class ColumnModel(QAbstractTableModel):
             reason = self.numbers_read_as_codes(label)
             if reason:
                 return (
-                    f"{s.header(label)} was read as an identifier ({reason}), but every cell "
-                    "is a number. To scale it, right-click it and choose Read as > number."
+                    f"{s.header(label)} cannot be scaled: it was read as an identifier "
+                    f"({reason}), though every cell is a number. If these are amounts rather "
+                    "than codes, right-click it and choose Read as > number."
                 )
             if why_not:
                 return f"{s.header(label)} cannot be scaled: it is {why_not}."
