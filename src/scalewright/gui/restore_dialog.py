@@ -129,8 +129,8 @@ class RestoreDialog(WritingDialog):
 
         middle = QHBoxLayout()
         middle.setSpacing(12)
-        middle.addWidget(mapping_box, 5)
-        middle.addWidget(preview_box, 4)
+        middle.addWidget(mapping_box, 3)  # four columns, with the new names
+        middle.addWidget(preview_box, 2)
 
         out_box = self.make_output_box(
             "Save the restored file as",
