@@ -16,7 +16,7 @@ import pandas as pd
 import pytest
 from dialog_helpers import save_screenshot
 from PySide6.QtCore import QPoint, Qt
-from PySide6.QtWidgets import QDialog
+from PySide6.QtWidgets import QDialog, QLabel
 
 from scalewright import engine, tasks
 from scalewright import io as swio
@@ -281,6 +281,47 @@ def test_a_missing_column_is_named_and_blocks_saving(qtbot, dialog, tmp_path):
     assert cell(dialog, "soil_ph", 2) != ""  # the other columns are still listed with counts
     assert not dialog.can_save()
     assert "yield_kg" in dialog.save_button.toolTip()
+    # the message is said once, under the file, not again in the summary (issue 8, item 9)
+    assert "yield_kg" not in dialog.summary_label.text()
+    shown = [
+        w.text()
+        for w in dialog.findChildren(QLabel)
+        if w.isVisibleTo(dialog) and "no column 'yield_kg'" in w.text()
+    ]
+    assert len(shown) == 1, shown
+
+
+def test_a_renamed_column_is_paired_by_hand_and_scaled(qtbot, dialog, project, tmp_path):
+    """Issue 8, item 9: Apply pairs columns as Restore does; the file written equals the
+    command line's job with the same mapping (tasks.apply_to_file)."""
+    frame = pd.read_csv(HARVEST_2026, dtype=str, keep_default_na=False)
+    path = tmp_path / "harvest_2026_renamed.csv"
+    frame.rename(columns={"yield_kg": "yield_2026"}).to_csv(path, index=False)
+    pick_data(qtbot, dialog, path)
+    target = tmp_path / "scaled.csv"
+    pick_output(qtbot, dialog, target)
+    assert dialog.missing_columns() == ["yield_kg"]
+    assert not dialog.can_save()
+    box = dialog.pairing.box("yield_2026")
+    box.setCurrentIndex(box.findData("yield_kg"))  # as a user picking it in the box
+    assert dialog.mapping()["yield_2026"] == "yield_kg"
+    assert dialog.missing_columns() == []
+    assert dialog.data_problem() == ""
+    assert dialog.table.item(FITTED.index("yield_kg"), 0).text() == "yield_kg (from yield_2026)"
+    # the counts are the engine's for the renamed column
+    table = swio.read_table(path)
+    _, reports = engine.apply(
+        table.data.rename(columns={"yield_2026": "yield_kg"}), project.plan, clip=False
+    )
+    expected = {r.column: r for r in reports}["yield_kg"]
+    got = dialog.preview_reports()["yield_kg"]
+    assert (got.n_below, got.n_above) == (expected.n_below, expected.n_above)
+    save_screenshot(dialog, "apply_dialog_pairing", tmp_path)
+    save_and_wait(qtbot, dialog)
+    reference = tmp_path / "reference.csv"
+    tasks.apply_to_file(project, path, reference, mapping=dialog.mapping())
+    assert filecmp.cmp(target, reference, shallow=False)
+    assert "yield_2026" in written(target).columns
 
 
 def test_a_text_column_where_numbers_were_fitted_is_refused(qtbot, dialog, tmp_path):

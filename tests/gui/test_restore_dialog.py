@@ -21,7 +21,8 @@ from PySide6.QtWidgets import QDialog
 from scalewright import io as swio
 from scalewright import tasks
 from scalewright.engine import ColumnChoice, FitSettings
-from scalewright.gui.restore_dialog import LEAVE, RestoreDialog
+from scalewright.gui.column_pairing import LEAVE
+from scalewright.gui.restore_dialog import RestoreDialog
 
 pytestmark = [pytest.mark.gui, pytest.mark.usefixtures("themed")]
 
@@ -333,3 +334,39 @@ def test_every_control_explains_itself(qtbot, make_dialog, project):
     ]
     for widget in controls:
         assert widget.toolTip().strip(), type(widget).__name__
+
+
+def test_a_restored_column_gets_the_name_typed_for_it(qtbot, make_dialog, project, tmp_path):
+    """Issue 8, item 4: predicted_yield holds kilograms once restored, so the user may call
+    it predicted_yield_kg; the original name is the default."""
+    dialog = make_dialog(project)
+    pick_data(qtbot, dialog, PREDICTIONS)
+    target = tmp_path / "restored.csv"
+    pick_output(qtbot, dialog, target)
+    choose(qtbot, dialog.mapping_box("predicted_yield"), "yield_kg")
+    edit = dialog.mapping_table.name_edit("predicted_yield")
+    assert edit.text() == "predicted_yield" and edit.isEnabled()
+    assert not dialog.mapping_table.name_edit("tree_code").isEnabled()  # not restored
+    assert dialog.names() == {}
+    edit.selectAll()
+    qtbot.keyClicks(edit, "predicted_yield_kg")
+    assert dialog.names() == {"predicted_yield": "predicted_yield_kg"}
+    save_screenshot(dialog, "restore_dialog_new_names", tmp_path)
+    save_and_wait(qtbot, dialog)
+    got = pd.read_csv(target, dtype={"tree_code": str})
+    scaled = pd.read_csv(PREDICTIONS, dtype={"tree_code": str})
+    assert "predicted_yield" not in got.columns
+    # sample_data/README.md: predicted_kg = predicted_yield * sd + mean
+    np.testing.assert_allclose(
+        got["predicted_yield_kg"], scaled["predicted_yield"] * README_SD + README_MEAN, rtol=1e-12
+    )
+    # the same as the command line's job with names=
+    reference = tmp_path / "reference.csv"
+    tasks.restore_file(
+        project,
+        PREDICTIONS,
+        reference,
+        mapping={"predicted_yield": "yield_kg"},
+        names={"predicted_yield": "predicted_yield_kg"},
+    )
+    assert filecmp.cmp(target, reference, shallow=False)

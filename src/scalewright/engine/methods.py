@@ -26,6 +26,7 @@ from .method_base import (
     largest_size,
     near,
 )
+from .number_text import number_text
 
 
 def _sd_words(ddof: Any) -> str:
@@ -561,11 +562,13 @@ class _PowerMethod(Method):
                 "some values cannot be turned back at all"
                 if not np.isfinite(err)
                 else (
-                    f"turning scaled values back is only accurate to about {err:.0e} of the "
+                    f"turning scaled values back is only accurate to about {number_text(err, '.0e')} of the "
                     "largest value"
                 )
             )
-            warnings.append(f"lambda {params['lambda']:.4g} is extreme for these values: {lost}")
+            warnings.append(
+                f"lambda {number_text(params['lambda'], '.4g')} is extreme for these values: {lost}"
+            )
 
     def _scale(self, t: np.ndarray, params) -> np.ndarray:
         if params.get("standardize"):

@@ -31,6 +31,7 @@ from .. import io as swio
 from ..engine.number_text import number_text
 from ..guide import CAUTION_CLIPPING
 from . import theme
+from .column_pairing import ColumnPairing
 from .widgets import MUTED_STYLE, escape_html, plural, set_message
 from .writing_dialog import WritingDialog, saved_parameters
 
@@ -64,7 +65,7 @@ class ApplyDialog(WritingDialog):
         self._problems: dict[str, str] = {}
         self.setWindowTitle("Apply saved scaling to another file")
         self.setObjectName("applyDialog")
-        self.resize(900, 640)
+        self.resize(900, 760)
         self._build()
         self._show_report()
         self._update_state()
@@ -83,8 +84,22 @@ class ApplyDialog(WritingDialog):
         data_box = self.make_file_box(
             "File to scale",
             "Choose the file to scale",
-            "The new data file. It needs every column the project scales, with the same names.",
+            "The new data file. Each column the project scales is paired with a column of "
+            "this file: by name, or as you choose below.",
         )
+
+        self.pairing = ColumnPairing("scale")
+        self.pairing.changed.connect(self._pairing_changed)
+        self.pairing_hint = QLabel(
+            "Columns named like a fitted column are paired with it; pair the others with "
+            "the box on their row (for example yield_2026 with yield_kg)."
+        )
+        self.pairing_hint.setWordWrap(True)
+        self.pairing_hint.setStyleSheet(MUTED_STYLE)
+        pairing_box = QGroupBox("Which parameters scale each column")
+        pairing_layout = QVBoxLayout(pairing_box)
+        pairing_layout.addWidget(self.pairing_hint)
+        pairing_layout.addWidget(self.pairing, 1)
 
         self.table = QTableWidget(0, len(REPORT_COLUMNS))
         self.table.setObjectName("report")
@@ -134,7 +149,9 @@ class ApplyDialog(WritingDialog):
             "which original units can be restored later), .csv or .tsv for plain text. "
             "It can never be the file being scaled.",
         )
-        self.lay_out(intro, "Save scaled file", data_box, (report_box, 1), out_box)
+        self.lay_out(
+            intro, "Save scaled file", data_box, (pairing_box, 1), (report_box, 1), out_box
+        )
 
     # ------------------------------------------------------------------ public API
 
@@ -151,6 +168,14 @@ class ApplyDialog(WritingDialog):
     def missing_columns(self) -> list[str]:
         return list(self._missing)
 
+    def mapping(self) -> dict[str, str]:
+        """File column -> fitted column, as paired in the table (passed to apply_table)."""
+        return self.pairing.mapping()
+
+    def set_mapping(self, column: str, fitted: str | None) -> None:
+        """Pair a column of the file with a fitted column, as its box does."""
+        self.pairing.set_mapping(column, fitted)
+
     # ------------------------------------------------------------------ reading
 
     def _forget_file(self) -> None:
@@ -162,9 +187,11 @@ class ApplyDialog(WritingDialog):
         plan = self._project.plan
         reading = tasks.reading_for(self._project, swio.ReadOptions(sheet=sheet))
 
+        project = self._project
+
         def read(progress, cancelled):
             table = swio.read_table(path, reading, progress=progress, cancelled=cancelled)
-            return table, preview_apply(table, plan)
+            return table, preview_apply(table, plan, name_pairs(table, project))
 
         return read
 
@@ -172,6 +199,16 @@ class ApplyDialog(WritingDialog):
         self._table, (self._preview_reports, self._missing, self._problems) = result
 
     def _show_file(self) -> None:
+        self.pairing.fill(self._table, self._project)
+        self._show_report()
+        self._update_state()
+
+    def _pairing_changed(self, _column: str) -> None:
+        """A pair changed: count again with the new pairs (on the table already read)."""
+        self.result_label.hide()
+        if self._table is not None:
+            found = preview_apply(self._table, self._project.plan, self.mapping())
+            self._preview_reports, self._missing, self._problems = found
         self._show_report()
         self._update_state()
 
@@ -201,10 +238,16 @@ class ApplyDialog(WritingDialog):
         outside_total = 0
         for r, (column, fc) in enumerate(rows):
             method = engine.get_method(fc.method).name
-            cells: list[tuple[str, str]] = [(column, column), (method, _method_tip(fc))]
+            source = next((c for c, f in self.mapping().items() if f == column), column)
+            shown = column if source == column else f"{column} (from {source})"
+            cells: list[tuple[str, str]] = [(shown, shown), (method, _method_tip(fc))]
             if column in self._missing:
+                absent = column not in self._table.data.columns
                 cells += [("", "")] * 4 + [
-                    ("⚠ not in this file", "The file has no column with this name.")
+                    (
+                        "⚠ not in this file" if absent else "⚠ not paired",
+                        "No column of the file is paired with it (see above).",
+                    )
                 ]
             elif column in self._problems:
                 cells += [("", "")] * 4 + [(f"⚠ {self._problems[column]}", self._problems[column])]
@@ -264,11 +307,7 @@ class ApplyDialog(WritingDialog):
         n_rows = len(self._table.data)
         text = f"{plural(n_rows, 'row')} in {escape_html(self._table.source.name)}. "
         if self._missing:
-            text += (
-                "<b>It has no column "
-                + ", ".join(f"'{escape_html(c)}'" for c in self._missing)
-                + "</b>, so it cannot be scaled with this project."
-            )
+            pass  # said once, under the file (see _data_problem)
         elif self._problems:
             text += "<b>Some columns cannot be scaled</b> (see the list)."
         elif outside_total:
@@ -288,8 +327,8 @@ class ApplyDialog(WritingDialog):
         if self._missing:
             names = ", ".join(f"'{c}'" for c in self._missing)
             return (
-                f"This file has no column {names}. Every column the project scales must "
-                "be in the file, with the same name."
+                f"This file has no column {names}, and no column is paired with it. Pair "
+                "one in the table below: every column the project scales needs one."
             )
         if self._problems:
             return " ".join(f"'{c}' {why}." for c, why in self._problems.items())
@@ -321,7 +360,7 @@ class ApplyDialog(WritingDialog):
         self.save_button.setToolTip(tip)
 
     def _set_busy(self, busy: bool) -> None:
-        for w in (self.output_row, self.clip_check, self.data_row):
+        for w in (self.output_row, self.clip_check, self.data_row, self.pairing):
             w.setEnabled(not busy)
         self._update_state()
 
@@ -329,11 +368,17 @@ class ApplyDialog(WritingDialog):
 
     def _writer(self, target: Path):
         # The table read for the preview is the one scaled: the file is not read again.
-        project, table, clip = self._project, self._table, self.clip()
+        project, table, clip, mapping = self._project, self._table, self.clip(), self.mapping()
 
         def write(progress, cancelled):
             return tasks.apply_table(
-                project, table, target, clip=clip, progress=progress, cancelled=cancelled
+                project,
+                table,
+                target,
+                clip=clip,
+                mapping=mapping,
+                progress=progress,
+                cancelled=cancelled,
             )
 
         return write
@@ -354,28 +399,50 @@ class ApplyDialog(WritingDialog):
 # --------------------------------------------------------------------------- helpers
 
 
-def preview_apply(table: swio.Table, plan) -> tuple[dict, list[str], dict[str, str]]:
-    """(reports by column, missing columns, problems by column) for applying ``plan``.
+def name_pairs(table: swio.Table, project) -> dict[str, str]:
+    """The pairs found by name (what the pairing table starts with)."""
+    if project.plan is None or not project.plan.columns:
+        return {}
+    auto = tasks.auto_mapping([str(c) for c in table.data.columns], project)
+    return {c: f for c, f in auto.items() if not tasks.not_numbers(table, c)}
+
+
+def preview_apply(
+    table: swio.Table, plan, mapping: dict[str, str]
+) -> tuple[dict, list[str], dict[str, str]]:
+    """(reports by fitted column, fitted columns with no column paired, problems by fitted
+    column) for applying ``plan`` with ``mapping`` (file column -> fitted column).
 
     Every fitted column is looked at, so the dialog can list all problems at once; the
-    counts come from ``engine.apply`` on the columns that can be scaled.
+    counts come from ``engine.apply`` on the paired columns that can be scaled.
     """
     missing: list[str] = []
     problems: dict[str, str] = {}
-    present = {}
+    present, sources = {}, {}
     if plan is None:
         return {}, missing, problems
-    for column, fc in plan.columns.items():
-        if column not in table.data.columns:
-            missing.append(column)
+    source_of: dict[str, str] = {}
+    for column, fitted in mapping.items():
+        source_of.setdefault(fitted, column)
+    for fitted, fc in plan.columns.items():
+        column = source_of.get(fitted)
+        if column is None and fitted in table.data.columns and tasks.not_numbers(table, fitted):
+            problems[fitted] = tasks.not_numbers(table, fitted)  # same name, not numbers
+        elif column is None:
+            missing.append(fitted)
         elif why := tasks.not_numbers(table, column):
-            problems[column] = why
+            problems[fitted] = why
         else:
-            present[column] = fc
+            present[fitted], sources[fitted] = fc, column
     reports: dict[str, engine.ColumnReport] = {}
     if present:
         sub = engine.FittedPlan(present, plan.settings, plan.n_rows)
-        _, found = engine.apply(tasks.blank_as_numbers(table, present), sub, clip=False)
+        data = tasks.blank_as_numbers(table, list(sources.values()))
+        frame = data[list(sources.values())].set_axis(list(sources), axis=1)
+        group = plan.settings.group_by
+        if group is not None and group in data.columns and group not in frame.columns:
+            frame[group] = data[group]  # each group's own parameters
+        _, found = engine.apply(frame, sub, clip=False)
         reports = {r.column: r for r in found}
     return reports, missing, problems
 

@@ -2,11 +2,20 @@
 
 from __future__ import annotations
 
-from PySide6.QtCore import QAbstractTableModel, QItemSelection, QItemSelectionModel, QModelIndex, Qt
-from PySide6.QtGui import QBrush, QColor
-from PySide6.QtWidgets import QAbstractItemView, QHeaderView, QTableView, QWidget
+from PySide6.QtCore import (
+    QAbstractTableModel,
+    QItemSelection,
+    QItemSelectionModel,
+    QModelIndex,
+    Qt,
+    Signal,
+)
+from PySide6.QtGui import QActionGroup, QBrush, QColor
+from PySide6.QtWidgets import QAbstractItemView, QHeaderView, QMenu, QTableView, QWidget
 
+from .. import io as swio
 from ..engine import get_method
+from ..io.corrections import described
 from ..session import Session
 from . import theme
 
@@ -14,7 +23,8 @@ NAME, KIND, METHOD, WARN = range(4)
 HEADERS = ("Column", "Kind", "Scale with", "")
 HEADER_TIPS = (
     "The column's name as written in the file",
-    "What the column holds, as detected when the file was read",
+    "What the column holds, as detected when the file was read; right-click a row (or "
+    "double-click its kind) to read it as another kind",
     "The scaling method chosen for the column",
     "A mark here means something about this column needs your attention; hover it to read why",
 )
@@ -28,6 +38,8 @@ class ColumnModel(QAbstractTableModel):
         super().__init__(parent)
         self.session = session
         self._labels: list[str] = []
+        self._allowed: dict[str, tuple[swio.ColumnKind, ...]] = {}
+        self._code_reason: dict[str, str | None] = {}
         session.table_loaded.connect(self._reset)
         session.choices_changed.connect(self._rows_changed)
         session.fitted.connect(lambda label: self._rows_changed([label]))
@@ -36,6 +48,7 @@ class ColumnModel(QAbstractTableModel):
     def _reset(self) -> None:
         self.beginResetModel()
         self._labels = self.session.labels
+        self._allowed, self._code_reason = {}, {}
         self.endResetModel()
 
     def _rows_changed(self, labels: list[str]) -> None:
@@ -47,6 +60,18 @@ class ColumnModel(QAbstractTableModel):
     def _all_changed(self) -> None:
         if self._labels:
             self.dataChanged.emit(self.index(0, 0), self.index(len(self._labels) - 1, WARN))
+
+    def allowed_kinds(self, label: str) -> tuple[swio.ColumnKind, ...]:
+        """The kinds the column's cells allow (``io.allowed_kinds``), worked out once."""
+        if label not in self._allowed:
+            self._allowed[label] = swio.allowed_kinds(self.session.table, label)
+        return self._allowed[label]
+
+    def numbers_read_as_codes(self, label: str) -> str | None:
+        """Why a column of numbers was taken as an identifier (None: it was not)."""
+        if label not in self._code_reason:
+            self._code_reason[label] = swio.identifier_of_numbers(self.session.table, label)
+        return self._code_reason[label]
 
     def label(self, row: int) -> str:
         return self._labels[row]
@@ -94,6 +119,13 @@ class ColumnModel(QAbstractTableModel):
             if col == WARN:
                 return WARNING_MARK if (not why_not and s.warnings(label)) else ""
         elif role == Qt.ItemDataRole.ToolTipRole:
+            reason = self.numbers_read_as_codes(label)
+            if reason:
+                return (
+                    f"{s.header(label)} cannot be scaled: it was read as an identifier "
+                    f"({reason}), though every cell is a number. If these are amounts rather "
+                    "than codes, right-click it and choose Read as > number."
+                )
             if why_not:
                 return f"{s.header(label)} cannot be scaled: it is {why_not}."
             if col == WARN:
@@ -115,7 +147,13 @@ class ColumnModel(QAbstractTableModel):
 
 
 class ColumnList(QTableView):
-    """The list of columns; selecting rows selects columns in the session."""
+    """The list of columns; selecting rows selects columns in the session.
+
+    Right-clicking a row (or double-clicking its kind) offers the kinds its cells allow;
+    choosing one emits ``kind_chosen(label, kind)`` for the window to re-read the column.
+    """
+
+    kind_chosen = Signal(str, str)
 
     def __init__(self, session: Session, parent: QWidget | None = None) -> None:
         super().__init__(parent)
@@ -139,6 +177,9 @@ class ColumnList(QTableView):
         header.resizeSection(WARN, 28)
         header.setHighlightSections(False)
         self.setToolTip("The columns of the table. Select one or several (Ctrl+click, Shift+click)")
+        self.setContextMenuPolicy(Qt.ContextMenuPolicy.CustomContextMenu)
+        self.customContextMenuRequested.connect(self._show_kind_menu)
+        self.doubleClicked.connect(self._on_double_click)
         self.selectionModel().selectionChanged.connect(self._on_selection)
         session.selection_changed.connect(self._show_selection)
         session.table_loaded.connect(lambda: self._show_selection(session.selection))
@@ -179,3 +220,42 @@ class ColumnList(QTableView):
         if labels:
             idx = self.model_.index(self.model_.row_of(labels[0]), 0)
             sm.setCurrentIndex(idx, QItemSelectionModel.SelectionFlag.NoUpdate)
+
+    # ------------------------------------------------------------------ kind corrections
+
+    def kind_menu(self, label: str) -> QMenu:
+        """'Read as': number, identifier, text and date, those the cells allow enabled,
+        the column's kind ticked."""
+        menu = QMenu(self)
+        menu.setToolTipsVisible(True)
+        header = menu.addAction(f"Read '{self.session.header(label)}' as")
+        header.setEnabled(False)
+        allowed = self.model_.allowed_kinds(label)
+        current = self.session.kind(label)
+        group = QActionGroup(menu)
+        for kind in swio.CORRECTABLE_KINDS:
+            action = menu.addAction(str(kind.value))
+            action.setCheckable(True)
+            action.setChecked(kind.value == current)
+            action.setEnabled(kind in allowed)
+            action.setToolTip(
+                f"Read the column as {described(kind)}"
+                if kind in allowed
+                else f"Not every cell of the column can be read as {described(kind)}"
+            )
+            action.setData(kind.value)
+            group.addAction(action)
+            action.triggered.connect(
+                lambda _c=False, k=kind.value: k != current and self.kind_chosen.emit(label, k)
+            )
+        return menu
+
+    def _show_kind_menu(self, pos) -> None:
+        index = self.indexAt(pos)
+        if index.isValid() and self.session.table is not None:
+            self.kind_menu(self.model_.label(index.row())).popup(self.viewport().mapToGlobal(pos))
+
+    def _on_double_click(self, index) -> None:
+        if index.isValid() and index.column() == KIND:
+            rect = self.visualRect(index)
+            self._show_kind_menu(rect.bottomLeft())

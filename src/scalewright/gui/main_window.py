@@ -15,14 +15,22 @@ from __future__ import annotations
 from pathlib import Path
 from typing import Any
 
-from PySide6.QtCore import QByteArray, QSettings, Qt, QTimer, Signal
-from PySide6.QtGui import QAction, QCloseEvent, QIcon, QKeySequence, QUndoStack
+from PySide6.QtCore import QByteArray, QSettings, Qt, QTimer, QUrl, Signal
+from PySide6.QtGui import (
+    QAction,
+    QCloseEvent,
+    QDesktopServices,
+    QIcon,
+    QKeySequence,
+    QUndoStack,
+)
 from PySide6.QtWidgets import (
     QApplication,
     QDockWidget,
     QLabel,
     QMainWindow,
     QMessageBox,
+    QPushButton,
     QScrollArea,
     QSplitter,
     QStyle,
@@ -38,7 +46,7 @@ from ..guide import CAUTION_KEEP_PROJECT
 from ..project import load_project, save_project
 from ..projects import PROJECT_SUFFIX
 from ..session import Session, column_facts
-from . import commands, file_dialogs, report_action, theme
+from . import commands, file_dialogs, kind_correction, report_action, theme
 from .apply_dialog import ApplyDialog
 from .column_list import ColumnList
 from .errors import show_error
@@ -86,6 +94,7 @@ class MainWindow(QMainWindow):
         self._fit_to_screen(1360, 860)
 
         self.columns = ColumnList(self.session)
+        self.columns.kind_chosen.connect(self.correct_kind)
         self.method_panel = MethodPanel(self.session, self.stack)
         self.histograms = HistogramPanel(self.session)
         self.preview = PreviewPanel(self.session)
@@ -99,7 +108,8 @@ class MainWindow(QMainWindow):
         lay.addWidget(self.columns, 1)
         self.columns_hint = QLabel(
             "Click a column to choose how to scale it; Ctrl+click or Shift+click to choose "
-            "several at once. Greyed columns cannot be scaled: hover them to see why."
+            "several at once. Greyed columns cannot be scaled: hover them to see why, and "
+            "right-click one to read it as another kind (number, identifier, text, date)."
         )
         self.columns_hint.setWordWrap(True)
         self.columns_hint.setProperty("role", "hint")
@@ -142,6 +152,19 @@ class MainWindow(QMainWindow):
         self.history.hide()
 
         self.jobs = JobRunner(self)
+        # After a file is written, a button offers its folder (hidden again after a while).
+        self.written_folder: Path | None = None
+        self.open_folder_button = QPushButton("Open folder")
+        self.open_folder_button.setIcon(
+            self.style().standardIcon(QStyle.StandardPixmap.SP_DirOpenIcon)
+        )
+        self.open_folder_button.setFlat(True)
+        self.open_folder_button.clicked.connect(self.open_written_folder)
+        self.open_folder_button.hide()
+        self._folder_timer = QTimer(self)
+        self._folder_timer.setSingleShot(True)
+        self._folder_timer.timeout.connect(self.open_folder_button.hide)
+        self.statusBar().addPermanentWidget(self.open_folder_button)
         self.statusBar().addPermanentWidget(self.jobs)
         self.jobs.busy_changed.connect(self._on_busy)
 
@@ -152,6 +175,7 @@ class MainWindow(QMainWindow):
         self.session.dirty_changed.connect(self._update_title)
         self.session.project_path_changed.connect(lambda _p: self._update_title())
         self.session.table_loaded.connect(self._on_table)
+        self.file_written.connect(self.offer_folder)
         # Writing waits for fits still running in the background (see _update_actions).
         self.session.fitted.connect(self._update_actions)
         self.session.choices_changed.connect(self._update_actions)
@@ -169,7 +193,9 @@ class MainWindow(QMainWindow):
             a.setShortcut(QKeySequence(shortcut))
         a.setToolTip(tip or text.replace("…", ""))
         a.setStatusTip(tip or text.replace("…", ""))
-        if icon is not None:
+        if isinstance(icon, str):
+            a.setIcon(drawn_icon(icon))
+        elif icon is not None:
             a.setIcon(self.style().standardIcon(icon))
         a.triggered.connect(lambda _checked=False: slot())
         return a
@@ -181,14 +207,14 @@ class MainWindow(QMainWindow):
             self.choose_and_open_data,
             QKeySequence.StandardKey.Open,
             "Open a CSV or spreadsheet file",
-            sp.SP_DialogOpenButton,
+            "open-data",
         )
         self.act_open_project = self._action(
             "Open project…",
             self.choose_and_open_project,
             "Ctrl+Shift+O",
             "Open a saved Scalewright project and its data",
-            sp.SP_DirOpenIcon,
+            "open-project",
         )
         self.act_save = self._action(
             "Save project",
@@ -208,21 +234,21 @@ class MainWindow(QMainWindow):
             self.choose_and_export,
             "Ctrl+E",
             "Write the scaled table as a workbook (with a parameters sheet) or as CSV",
-            sp.SP_FileIcon,
+            "export",
         )
         self.act_apply = self._action(
             "Apply to another file…",
             self.open_apply_dialog,
             "Ctrl+Shift+A",
             "Scale another file (for example next season's) with these same fitted values",
-            sp.SP_FileDialogDetailedView,
+            "apply",
         )
         self.act_restore = self._action(
             "Restore original units…",
             self.open_restore_dialog,
             "Ctrl+Shift+R",
             "Turn scaled values (for example a model's predictions) back into original units",
-            sp.SP_BrowserReload,
+            "restore",
         )
         self.act_report = self._action(
             "Report…",
@@ -424,6 +450,20 @@ class MainWindow(QMainWindow):
 
     def notify(self, text: str, msecs: int = 8000) -> None:
         self.statusBar().showMessage(text, msecs)
+
+    # The opener of folders; tests replace it.
+    open_url = staticmethod(QDesktopServices.openUrl)
+
+    def offer_folder(self, path: str | Path) -> None:
+        """After a save, an export, an apply or a restore: offer the written file's folder."""
+        self.written_folder = Path(path).absolute().parent
+        self.open_folder_button.setToolTip(f"Show {self.written_folder} in the file manager")
+        self.open_folder_button.show()
+        self._folder_timer.start(30000)
+
+    def open_written_folder(self) -> None:
+        if self.written_folder is not None:
+            self.open_url(QUrl.fromLocalFile(str(self.written_folder)))
 
     # ================================================================== questions (replaced in tests)
 
@@ -659,6 +699,9 @@ class MainWindow(QMainWindow):
     def save_as(self, *, wait: bool = False) -> bool:
         if self.session.table is None:
             return False
+        # Say which column is the problem before asking for a name (issue 8, item 3).
+        if not self._ready_to_write("The project was not saved: ", wait=wait):
+            return False
         suggested = projects.suggested_project_name(self.session.table.source)
         path = self.ask_save_path("Save project", PROJECT_FILTER, suggested)
         if not path:
@@ -717,8 +760,8 @@ class MainWindow(QMainWindow):
             loop.exec()
 
     def choose_and_export(self) -> None:
-        if self.session.table is None:
-            return
+        if self.session.table is None or not self._ready_to_write("Nothing was exported: "):
+            return  # checked before the file dialog, which would ask for nothing
         suggested = Path(self.session.table.source).stem + "_scaled.xlsx"
         path = self.ask_save_path("Export scaled data", EXPORT_FILTER, suggested)
         if path:
@@ -804,6 +847,12 @@ class MainWindow(QMainWindow):
         self.restore_dialog = dialog
 
     # ================================================================== edit helpers
+
+    def correct_kind(self, label: str, kind: str):
+        """Read a column as another kind (the file is read again; one undoable step)."""
+        if self.session.table is None or self.jobs.busy:
+            return None
+        return kind_correction.start(self, label, kind)
 
     def leave_selected(self) -> None:
         commands.set_method(self.stack, self.session, self.session.selection, "none")
@@ -927,6 +976,18 @@ class MainWindow(QMainWindow):
         self.fits.wait()
         self.save_geometry()
         event.accept()
+
+
+def icon_folder() -> Path:
+    """Where the drawn icons are: resources/icons, installed as scalewright.resources."""
+    from importlib.resources import files
+
+    return Path(str(files("scalewright.resources").joinpath("icons")))
+
+
+def drawn_icon(name: str) -> QIcon:
+    """One of the toolbar icons drawn for Scalewright (resources/icons/NAME.svg)."""
+    return QIcon(str(icon_folder() / f"{name}.svg"))
 
 
 def app_icon() -> QIcon:

@@ -18,16 +18,12 @@ from pathlib import Path
 import pandas as pd
 from PySide6.QtCore import Qt, Signal
 from PySide6.QtWidgets import (
-    QAbstractItemView,
     QComboBox,
     QGroupBox,
     QHBoxLayout,
-    QHeaderView,
     QLabel,
     QPushButton,
     QSizePolicy,
-    QTableWidget,
-    QTableWidgetItem,
     QVBoxLayout,
     QWidget,
 )
@@ -36,13 +32,13 @@ from .. import engine, tasks
 from .. import io as swio
 from ..errors import ScalewrightError
 from . import file_dialogs, theme
+from .column_pairing import ColumnPairing
 from .errors import plain_message
 from .frame_view import FrameModel, make_preview_view
-from .widgets import MUTED_STYLE, escape_html, kind_word, message_label, plural, set_message
-from .writing_dialog import WritingDialog, saved_parameters
+from .widgets import MUTED_STYLE, escape_html, message_label, plural, set_message
+from .writing_dialog import WritingDialog
 
 PREVIEW_ROWS = 20
-LEAVE = "leave as is"
 PROJECT_FILTER = "Project or scaled workbook (*.swproj *.xlsx *.xlsm);;All files (*)"
 
 
@@ -61,8 +57,6 @@ class RestoreDialog(WritingDialog):
     def __init__(self, project=None, parent: QWidget | None = None) -> None:
         super().__init__(parent)
         self._project_error = ""
-        self._auto: dict[str, str] = {}
-        self._combos: dict[str, QComboBox] = {}
         self._preview_frame = pd.DataFrame()
         self._preview_notes: list[str] = []
         self.setWindowTitle("Restore original units")
@@ -106,33 +100,8 @@ class RestoreDialog(WritingDialog):
             "a model's predictions.",
         )
 
-        self.mapping_table = QTableWidget(0, 3)
-        self.mapping_table.setObjectName("mapping")
-        self.mapping_table.setToolTip(
-            "For each column of the file: the fitted column whose parameters bring it back "
-            "to original units, or 'leave as is'."
-        )
-        self.mapping_table.setEditTriggers(QAbstractItemView.EditTrigger.NoEditTriggers)
-        self.mapping_table.setSelectionMode(QAbstractItemView.SelectionMode.NoSelection)
-        self.mapping_table.verticalHeader().hide()
-        for i, (title, tip) in enumerate(
-            (
-                ("Column in the file", "A column of the chosen file."),
-                (
-                    "Restore with the parameters of",
-                    "The fitted column whose parameters restore it.",
-                ),
-                ("Matched", "Whether the pair was found by name or chosen by you."),
-            )
-        ):
-            item = QTableWidgetItem(title)
-            item.setToolTip(tip)
-            self.mapping_table.setHorizontalHeaderItem(i, item)
-        header = self.mapping_table.horizontalHeader()
-        header.setDefaultAlignment(Qt.AlignmentFlag.AlignLeft)
-        header.setSectionResizeMode(QHeaderView.ResizeMode.ResizeToContents)
-        header.setSectionResizeMode(1, QHeaderView.ResizeMode.Stretch)
-        self.mapping_table.setHorizontalScrollBarPolicy(Qt.ScrollBarPolicy.ScrollBarAlwaysOff)
+        self.mapping_table = ColumnPairing("restore", rename=True)
+        self.mapping_table.changed.connect(self._mapping_changed)
         self.mapping_hint = QLabel()
         self.mapping_hint.setSizePolicy(QSizePolicy.Policy.Preferred, QSizePolicy.Policy.Minimum)
         self.mapping_hint.setObjectName("mappingHint")
@@ -160,8 +129,8 @@ class RestoreDialog(WritingDialog):
 
         middle = QHBoxLayout()
         middle.setSpacing(12)
-        middle.addWidget(mapping_box, 5)
-        middle.addWidget(preview_box, 4)
+        middle.addWidget(mapping_box, 3)  # four columns, with the new names
+        middle.addWidget(preview_box, 2)
 
         out_box = self.make_output_box(
             "Save the restored file as",
@@ -200,27 +169,26 @@ class RestoreDialog(WritingDialog):
 
     def automatic_mapping(self) -> dict[str, str]:
         """The pairs found by name for the chosen file."""
-        return dict(self._auto)
+        return self.mapping_table.automatic_mapping()
 
     def mapping(self) -> dict[str, str]:
         """File column -> fitted column, as currently chosen ('leave as is' left out)."""
-        out = {}
-        for column, box in self._combos.items():
-            fitted = box.currentData()
-            if fitted:
-                out[column] = fitted
-        return out
+        return self.mapping_table.mapping()
+
+    def names(self) -> dict[str, str]:
+        """File column -> the new name typed for it (restored columns only)."""
+        return self.mapping_table.names()
 
     def set_mapping(self, column: str, fitted: str | None) -> None:
         """Choose, as the box on the column's row does, which parameters restore it."""
-        box = self._combos[column]
-        i = box.findData(fitted or "")
-        if i < 0:
-            raise KeyError(fitted)
-        box.setCurrentIndex(i)
+        self.mapping_table.set_mapping(column, fitted)
+
+    def set_name(self, column: str, name: str) -> None:
+        """Type the name a restored column gets in the saved file."""
+        self.mapping_table.set_name(column, name)
 
     def mapping_box(self, column: str) -> QComboBox:
-        return self._combos[column]
+        return self.mapping_table.box(column)
 
     def preview_frame(self) -> pd.DataFrame:
         return self._preview_frame.copy()
@@ -283,10 +251,7 @@ class RestoreDialog(WritingDialog):
     # ------------------------------------------------------------------ mapping
 
     def _fill_mapping(self) -> None:
-        self._combos = {}
-        self.mapping_table.setRowCount(0)
-        fitted = self._fitted()
-        self._auto = {}
+        self.mapping_table.fill(self._table, self._project)
         if self._table is None:
             self.mapping_hint.setText(
                 "Choose a file to pair its columns with the project's fitted columns."
@@ -296,75 +261,13 @@ class RestoreDialog(WritingDialog):
             self.mapping_hint.setStyleSheet(MUTED_STYLE)
             self._refresh_preview()
             return
-        columns = [str(c) for c in self._table.data.columns]
-        if fitted:
-            auto = tasks.auto_mapping(columns, self._project)
-            self._auto = {c: f for c, f in auto.items() if not tasks.not_numbers(self._table, c)}
-        self.mapping_table.setRowCount(len(columns))
-        for r, column in enumerate(columns):
-            name = QTableWidgetItem(column)
-            kind = self._table.kinds.get(column)
-            word, explain = kind_word(kind) if kind is not None else ("", "")
-            name.setToolTip(f"{column}: {word}. {explain}" if word else column)
-            self.mapping_table.setItem(r, 0, name)
-            box = QComboBox()
-            box.addItem(LEAVE, "")
-            box.setItemData(
-                0, "Write this column as it is in the file.", Qt.ItemDataRole.ToolTipRole
-            )
-            for f, fc in fitted.items():
-                box.addItem(f"{f}  ({engine.get_method(fc.method).name})", f)
-                box.setItemData(box.count() - 1, _params_tip(fc), Qt.ItemDataRole.ToolTipRole)
-            why = tasks.not_numbers(self._table, column)
-            if why or not fitted:
-                box.setEnabled(False)
-                box.setToolTip(
-                    f"'{column}' {why}, so it is written as it is."
-                    if why
-                    else "The project has no fitted columns."
-                )
-            else:
-                box.setToolTip(
-                    f"Which fitted column's parameters bring '{column}' back to "
-                    "original units; 'leave as is' writes it unchanged."
-                )
-                if column in self._auto:
-                    box.setCurrentIndex(box.findData(self._auto[column]))
-            box.currentIndexChanged.connect(lambda _i, c=column: self._mapping_changed(c))
-            self._combos[column] = box
-            self.mapping_table.setCellWidget(r, 1, box)
-            self.mapping_table.setItem(r, 2, QTableWidgetItem())
-            self._show_match(column)
         self._show_hint()
         self._refresh_preview()
 
-    def _mapping_changed(self, column: str) -> None:
+    def _mapping_changed(self, _column: str) -> None:
         self.result_label.hide()
-        self._show_match(column)
         self._show_hint()
         self._refresh_preview()
-
-    def _show_match(self, column: str) -> None:
-        r = list(self._combos).index(column)
-        chosen = self._combos[column].currentData() or ""
-        auto = self._auto.get(column, "")
-        if not chosen:
-            text, tip = (
-                "",
-                (
-                    "A column of the same name was fitted, but you chose to leave "
-                    "this one as it is."
-                    if auto
-                    else "Written as it is."
-                ),
-            )
-        elif chosen == auto:
-            text, tip = "by name", "Paired automatically: the names match."
-        else:
-            text, tip = "chosen by you", "Paired by you."
-        item = self.mapping_table.item(r, 2)
-        item.setText(text)
-        item.setToolTip(tip)
 
     def _show_hint(self) -> None:
         n = len(self.mapping())
@@ -478,7 +381,7 @@ class RestoreDialog(WritingDialog):
 
     def _writer(self, target: Path):
         # The table read for the mapping and preview is the one restored (no second read).
-        project, table, mapping = self._project, self._table, self.mapping()
+        project, table, mapping, names = self._project, self._table, self.mapping(), self.names()
 
         def write(progress, cancelled):
             return tasks.restore_table(
@@ -486,6 +389,7 @@ class RestoreDialog(WritingDialog):
                 table,
                 target,
                 mapping=mapping,
+                names=names,
                 exact=True,
                 progress=progress,
                 cancelled=cancelled,
@@ -505,8 +409,3 @@ class RestoreDialog(WritingDialog):
                 f" {plural(undefined, 'value')} had no value in original units and were left blank."
             )
         self.show_written(text, tasks.describe_reports(reports, restoring=True))
-
-
-def _params_tip(fc) -> str:
-    m = engine.get_method(fc.method)
-    return f"{fc.column}, {m.name}. Saved parameters: {saved_parameters(fc)}"
