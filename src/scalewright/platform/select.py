@@ -1,0 +1,166 @@
+"""``scalewright sql``: one SELECT that applies (or reverses) a project's scaling in SQL.
+
+The statement is one sqlglot expression tree, written out in the dialect asked for. Every
+column of the source passes through unchanged, in order; each fitted column is replaced by
+its scaled (or restored) values under the same name. With groups, a CASE on the grouping
+column picks each group's parameters, and the parameters fitted on all groups serve values
+not seen when fitting (and missing group values), as in the engine. Missing values give
+NULL; values the transform cannot map give NULL (the engine leaves them blank); infinities
+pass through unchanged. The per-method formulas come from the method classes
+(``sql_forward`` / ``sql_inverse``); this module knows nothing of any one method.
+"""
+
+from __future__ import annotations
+
+import math
+
+from sqlglot import exp
+
+from ..engine import FittedColumn, ParamSet, get_method, value_key
+from ..errors import ProjectError
+from . import sqlexpr as S
+from .names import check_dialect, platform_names
+
+
+def _method_sql(method_id: str, restoring: bool):
+    method = get_method(method_id)
+    return method.sql_inverse if restoring else method.sql_forward
+
+
+def group_condition(group: exp.Expression, key: str, numeric: bool) -> exp.Expression:
+    """The test that a row belongs to the group with this key (see ``keys_are_numbers``)."""
+    if numeric:
+        return S.eq(group, S.num(float(key)))
+    text = exp.Trim(this=exp.cast(group, exp.DataType.build("varchar")))
+    return S.eq(text, exp.Literal.string(key))
+
+
+def keys_are_numbers(keys) -> bool:
+    """True when every group key is a number as the engine writes it (``3``, ``2.5``): the
+    grouping column was numeric, so the platform's column is compared as a number."""
+    for key in keys:
+        try:
+            number = float(key)
+        except ValueError:
+            return False
+        if not math.isfinite(number) or value_key(number) != key:
+            return False
+    return True
+
+
+def _clipped(x: exp.Expression, ps: ParamSet) -> exp.Expression:
+    """Values below or above the fitted range moved to its ends; infinities kept."""
+    finite = S.is_finite(x)
+    return S.case(
+        (S.and_(finite, S.lt(x.copy(), S.num(ps.min))), S.num(ps.min)),
+        (S.and_(finite.copy(), S.gt(x.copy(), S.num(ps.max))), S.num(ps.max)),
+        default=x.copy(),
+    )
+
+
+def mapped_body(
+    fc: FittedColumn,
+    x: exp.Expression,
+    *,
+    restoring: bool = False,
+    clip: bool = False,
+    group: exp.Expression | None = None,
+) -> exp.Expression:
+    """The SQL for one fitted column's scaled (or restored) values, before the checks
+    that ``finished`` adds: for finite values only (the caller guards the rest)."""
+    build = _method_sql(fc.method, restoring)
+
+    def one(ps: ParamSet) -> exp.Expression:
+        source = _clipped(x, ps) if clip and not restoring else x.copy()
+        return build(source, ps.params)
+
+    if group is not None and fc.groups:
+        numeric = keys_are_numbers(fc.groups)
+        return S.case(
+            *[(group_condition(group.copy(), key, numeric), one(ps)) for key, ps in fc.groups.items()],
+            default=one(fc.pooled),
+        )
+    return one(fc.pooled)
+
+
+def finished(x: exp.Expression, mapped: exp.Expression) -> exp.Expression:
+    """Infinities (and NaN, where the platform has it) and NULL pass through unchanged, as
+    in the engine; a finite value the transform cannot map (out of its domain, or beyond
+    the float range) gives NULL, where the engine leaves a blank."""
+    return S.case((S.is_finite(x), S.finite_or_null(mapped)), default=x.copy())
+
+
+def build_select(
+    project,
+    *,
+    restoring: bool = False,
+    clip: bool = False,
+    table: str | None = None,
+) -> exp.Select:
+    """The SELECT as a sqlglot tree (write it out with ``.sql(dialect=...)``).
+
+    An inner SELECT computes each fitted column's mapped values once (under a helper name
+    that cannot clash with a source column); the outer one checks them and lists every
+    source column under its own name, in order.
+    """
+    plan = project.plan
+    if plan is None:
+        raise ProjectError("project", "has no fitted parameters yet; fit it first")
+    labels = list(project.columns) or list(plan.columns)
+    names = platform_names(labels, list(project.headers))
+    group_by = plan.settings.group_by
+    group = S.column(names.get(group_by, group_by)) if group_by else None
+    helper = _helper_names(names.values())
+    inner = [S.column(names[label]) for label in labels]
+    outer = []
+    for label in labels:
+        name = names[label]
+        x = S.column(name)
+        fc = plan.columns.get(label)
+        if fc is None or get_method(fc.method).id == "none":
+            outer.append(x)
+            continue
+        body = mapped_body(fc, x, restoring=restoring, clip=clip, group=group)
+        mapped = next(helper)
+        inner.append(exp.alias_(S.case((S.is_finite(x.copy()), body)), mapped, quoted=True))
+        outer.append(exp.alias_(finished(x.copy(), S.column(mapped)), name, quoted=True))
+    source = table or default_table_name(project)
+    source_table = exp.to_table(source) if "." in source else _quoted_table(source)
+    staged = exp.select(*inner).from_(source_table).subquery("scaled_values")
+    return exp.select(*outer).from_(staged)
+
+
+def _helper_names(taken):
+    taken = set(taken)
+    n = 0
+    while True:
+        n += 1
+        name = f"scalewright_value_{n}"
+        if name not in taken:
+            yield name
+
+
+def _quoted_table(name: str) -> exp.Table:
+    return exp.Table(this=exp.to_identifier(name, quoted=True))
+
+
+def default_table_name(project) -> str:
+    """The source file's name without its extension (the usual name of a loaded table)."""
+    if project.source is not None:
+        return project.source.stem
+    return "source"
+
+
+def select_sql(
+    project,
+    *,
+    dialect: str = "duckdb",
+    restoring: bool = False,
+    clip: bool = False,
+    table: str | None = None,
+    pretty: bool = True,
+) -> str:
+    """The SELECT as text in ``dialect``."""
+    dialect = check_dialect(dialect)
+    tree = build_select(project, restoring=restoring, clip=clip, table=table)
+    return S.for_dialect(tree, dialect).sql(dialect=dialect, pretty=pretty)
