@@ -29,11 +29,18 @@ re-apply them to new files and turn scaled values back into original units.
 
 Without a command, opens the window."""
 
-FIT_EXAMPLES = """\
-methods: none, minmax, zscore, decimal, robust, maxabs, log, boxcox, yeojohnson
-options: minmax:low=-1,high=1   zscore:sd=population   log:base=10
-         boxcox:standardize=yes   yeojohnson:standardize=yes
 
+def _methods_help() -> str:
+    """The methods and their options with defaults, read from the methods themselves."""
+    from .engine import METHODS
+
+    examples = [m.options_example() for m in METHODS.values() if m.option_specs]
+    return (
+        f"methods: {', '.join(METHODS)}\noptions (the defaults shown): {'   '.join(examples)}\n\n"
+    )
+
+
+FIT_EXAMPLES = """\
 examples:
   scalewright fit harvest_2025.csv -m yield_kg=zscore -p yield.swproj
   scalewright fit harvest_2025.csv -m '*=zscore' -m pest_trap_count=yeojohnson \\
@@ -66,8 +73,22 @@ def _add_sheet(p: argparse.ArgumentParser) -> None:
     p.add_argument("--sheet", metavar="NAME", help="the worksheet to read (workbooks)")
 
 
+class _Parser(argparse.ArgumentParser):
+    """A parser whose epilog can be made when help is shown: the method list reads the
+    engine, which a command that does not need it should not have to import."""
+
+    def __init__(self, *args: Any, make_epilog: Callable[[], str] | None = None, **kw: Any):
+        super().__init__(*args, **kw)
+        self._make_epilog = make_epilog
+
+    def format_help(self) -> str:
+        if self._make_epilog is not None:
+            self.epilog = self._make_epilog()
+        return super().format_help()
+
+
 def build_parser() -> argparse.ArgumentParser:
-    parser = argparse.ArgumentParser(
+    parser = _Parser(
         prog=PROG,
         description=DESCRIPTION,
         formatter_class=argparse.RawDescriptionHelpFormatter,
@@ -91,7 +112,7 @@ def build_parser() -> argparse.ArgumentParser:
         help="fit methods to the columns of a data file and save the project",
         description="Fit a scaling method to columns of DATA and save the fitted parameters "
         "in a project file (and, with -o, the scaled data).",
-        epilog=FIT_EXAMPLES,
+        make_epilog=lambda: _methods_help() + FIT_EXAMPLES,
         formatter_class=argparse.RawDescriptionHelpFormatter,
     )
     p.add_argument("data", metavar="DATA", help="the data file to fit on")
@@ -482,28 +503,6 @@ def cmd_show(args: argparse.Namespace) -> int:
 
 # --------------------------------------------------------------------------- show
 
-_KEY_PARAMS = {
-    "minmax": ("min", "max", "low", "high"),
-    "zscore": ("mean", "sd"),
-    "decimal": ("j",),
-    "robust": ("median", "q1", "q3", "scale"),
-    "maxabs": ("maxabs",),
-    "log": ("shift",),
-    "boxcox": ("lambda", "mean", "sd"),
-    "yeojohnson": ("lambda", "mean", "sd"),
-}
-
-
-def _number(v: Any) -> str:
-    if isinstance(v, float):
-        return f"{v:.10g}"
-    return str(v)
-
-
-def key_parameters(method: str, params: dict) -> str:
-    keys = _KEY_PARAMS.get(method, tuple(params))
-    return ", ".join(f"{k}={_number(params[k])}" for k in keys if k in params)
-
 
 def _table(rows: list[list[str]]) -> list[str]:
     widths = [max(len(r[i]) for r in rows) for i in range(len(rows[0]))]
@@ -560,7 +559,7 @@ def show_lines(project, project_path: Path | None, *, header: bool = True) -> li
                 label,
                 method.name,
                 options_text(fc.options) or "-",
-                key_parameters(fc.method, fc.pooled.params),
+                method.describe_params(fc.pooled.params, brief=True),
                 f"{fc.pooled.n:,} values",
                 str(len(fc.warnings)) if fc.warnings else "-",
             ]
@@ -571,7 +570,7 @@ def show_lines(project, project_path: Path | None, *, header: bool = True) -> li
                     "",
                     f"  {settings.group_by} = {key}",
                     "",
-                    key_parameters(fc.method, ps.params),
+                    method.describe_params(ps.params, brief=True),
                     f"{ps.n:,} values",
                     "",
                 ]

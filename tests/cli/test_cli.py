@@ -124,7 +124,7 @@ def test_fit_apply_restore_show_scenario(season):
     assert f"fitted on:   {rows:,} rows where split is train" in lines
     yield_line = next(line for line in lines if line.startswith("yield_kg "))
     assert yield_line.split()[:3] == ["yield_kg", "z-score", "sd=sample"]
-    assert f"mean={np.mean(train):.10g}, sd={np.std(train, ddof=1):.10g}" in yield_line
+    assert f"mean {np.mean(train):.10g}, sd {np.std(train, ddof=1):.10g}" in yield_line
     assert f"{train.size:,} values" in yield_line
     soil_line = next(line for line in lines if line.startswith("soil_ph "))
     assert "min-max" in soil_line and "low=-1.0, high=1.0" in soil_line

@@ -136,7 +136,7 @@ def test_log_of_new_values_below_the_shift_is_reported_not_silent():
 
 
 def test_boxcox_inverse_out_of_domain_is_counted_in_restore():
-    plan = fit_one("boxcox", [1.0, 2.0, 3.0, 4.0, 10.0])
+    plan = fit_one("boxcox", [1.0, 2.0, 3.0, 4.0, 10.0], standardize="no")  # raw transform
     lam = plan["weight_g"].pooled.params["lambda"]
     # Box and Cox (1964): y = (x^lam - 1)/lam, so x = (lam*y + 1)^(1/lam) needs lam*y > -1;
     # y = -2/lam gives lam*y + 1 = -1, which no original value maps to.
@@ -149,7 +149,7 @@ def test_boxcox_inverse_out_of_domain_is_counted_in_restore():
 
 def test_yeojohnson_inverse_out_of_domain_is_counted_in_restore():
     x = np.random.default_rng(3).lognormal(0.0, 1.0, 300)
-    plan = fit_one("yeojohnson", x)
+    plan = fit_one("yeojohnson", x, standardize="no")  # raw transform
     lam = plan["weight_g"].pooled.params["lambda"]
     assert lam < 0  # right-skewed: the positive branch is bounded above by -1/lam
     back, reports = restore(pd.DataFrame({"weight_g": [0.1, -2.0 / lam]}), plan)

@@ -11,7 +11,6 @@ from pathlib import Path
 import numpy as np
 import pytest
 
-from scalewright import project as project_module
 from scalewright.engine import ColumnChoice, FitSettings, get_method
 from scalewright.errors import ProjectError, ReadError, WriteError
 from scalewright.io import read_table
@@ -26,6 +25,8 @@ from scalewright.project import (
     project_to_json,
     save_project,
 )
+from scalewright.project import loading as project_loading
+from scalewright.project import v1 as project_v1
 from scalewright.tasks import fit_project
 from support import SAMPLE_DATA
 
@@ -423,11 +424,11 @@ def test_migration_chain_runs_older_versions_through_each_step(good_doc, monkeyp
 
     def load_2(doc):
         seen.append(doc["version"])
-        return project_module._load_v1(dict(doc, version=1))
+        return project_v1.load(dict(doc, version=1))
 
-    monkeypatch.setattr(project_module, "FORMAT_VERSION", 2)
-    monkeypatch.setattr(project_module, "_MIGRATIONS", {1: migrate_1_to_2})
-    monkeypatch.setattr(project_module, "_LOADERS", {2: load_2})
+    monkeypatch.setattr(project_loading, "FORMAT_VERSION", 2)
+    monkeypatch.setattr(project_loading, "MIGRATIONS", {1: migrate_1_to_2})
+    monkeypatch.setattr(project_loading, "LOADERS", {2: load_2})
     project = project_from_json(json.dumps(good_doc), "p.swproj")
     assert seen == [1, 2]
     assert project.plan is not None

@@ -6,7 +6,16 @@ and the command line do to data goes through these calls.
 
 from .diagnostics import ColumnSummary, Suggestion, describe, suggest
 from .histogram import Histogram, bars_in_range, histogram, mapped_edges
-from .methods import METHODS, FitError, Method, OptionSpec, get_method, log_shift, robust_scale
+from .method_base import (
+    FitError,
+    LinearMethod,
+    Method,
+    OptionSpec,
+    ParamError,
+    ParamSpec,
+    format_number,
+)
+from .methods import METHODS, get_method, log_shift, robust_scale
 from .plan import (
     MAX_GROUPS,
     ColumnChoice,
@@ -36,9 +45,12 @@ __all__ = [
     "FittedColumn",
     "FittedPlan",
     "Histogram",
+    "LinearMethod",
     "Method",
     "OptionSpec",
+    "ParamError",
     "ParamSet",
+    "ParamSpec",
     "Suggestion",
     "apply",
     "bars_in_range",
@@ -47,6 +59,7 @@ __all__ = [
     "fit",
     "fit_column",
     "fit_rows",
+    "format_number",
     "get_method",
     "group_codes",
     "histogram",

@@ -1,240 +1,99 @@
-"""The scaling methods: options, fit, forward and inverse for each.
+"""The scaling methods, each described once in its own class, and the registry.
 
-A method object is stateless. ``fit`` takes the finite values of one column (missing and
-infinite values already left out) and normalised options, and returns the fitted
-parameters as a plain dict of JSON-ready values plus the warnings a user should see.
-``forward`` and ``inverse`` take any float array (NaN passes through as NaN) and the
-parameters. Every method is increasing, so bins, order and ranges map through it.
-
-The options a user types (``low=-1``, ``sd=population``, ``standardize=yes``) are
-checked and normalised by ``Method.options``; the same call serves the command line and
-the window.
+See ``method_base`` for what a method is made of. A new method is a module of its own
+(``quantile.py`` is one) and one line in ``METHODS`` below.
 """
 
 from __future__ import annotations
 
 import math
-from collections.abc import Mapping
-from dataclasses import dataclass
 from typing import Any
 
 import numpy as np
 
-from ..errors import OptionError, ScalewrightError
+from ..errors import OptionError
 from . import numerics, power
+from .method_base import (
+    FitError,
+    FitResult,
+    LinearMethod,
+    Method,
+    OptionSpec,
+    ParamError,
+    ParamSpec,
+    Steps,
+    finite_range,
+    largest_size,
+    near,
+)
 
 
-@dataclass(frozen=True)
-class OptionSpec:
-    """One option of a method: its name, allowed values or type, default and meaning."""
-
-    name: str
-    default: Any
-    help: str
-    choices: tuple[str, ...] = ()  # for text options
-    kind: str = "text"  # "text", "number" or "yes/no"
+def _sd_words(ddof: Any) -> str:
+    return "sample sd (divides by n \u2212 1)" if ddof == 1 else "population sd (divides by n)"
 
 
-class FitError(ScalewrightError):
-    """A method cannot be fitted to these values; the plan adds the column's name."""
+def _standardized(params) -> bool:
+    return bool(params.get("standardize"))
 
 
-class FitResult(dict):
-    """Fitted parameters (a plain dict) with the warnings raised while fitting."""
-
-    def __init__(
-        self,
-        params: Mapping[str, Any],
-        warnings: list[str] | None = None,
-        data_range: tuple[float, float] | None = None,
-    ) -> None:
-        super().__init__(params)
-        self.warnings = list(warnings or [])
-        #: (min, max) of the fitted values when the method computed it anyway, so that
-        #: the plan need not read the values again.
-        self.data_range = data_range
+_UNSTANDARDIZED = "standardize is false"
 
 
-_YES = {"yes", "true", "1", "on"}
-_NO = {"no", "false", "0", "off"}
-
-
-class Method:
-    """Base class: subclasses set the class attributes and override fit/forward/inverse."""
-
-    id: str = ""
-    name: str = ""
-    summary: str = ""  # one sentence: what it does, in plain words
-    when_to_use: str = ""  # one sentence: when to choose it
-    option_specs: tuple[OptionSpec, ...] = ()
-    inverse_formula: str = ""  # how to reverse by hand, in terms of the parameter names
-
-    def options(self, given: Mapping[str, Any] | None = None) -> dict[str, Any]:
-        """Check user-given options and return them complete, defaults filled in."""
-        given = dict(given or {})
-        out: dict[str, Any] = {}
-        specs = {s.name: s for s in self.option_specs}
-        unknown = sorted(set(given) - set(specs))
-        if unknown:
-            allowed = ", ".join(specs) or "none"
-            raise OptionError(f"{self.id} has no option '{unknown[0]}' (options: {allowed})")
-        for spec in self.option_specs:
-            value = given.get(spec.name, spec.default)
-            out[spec.name] = self._coerce(spec, value)
-        self.check_options(out)
-        return out
-
-    def _coerce(self, spec: OptionSpec, value: Any) -> Any:
-        if spec.kind == "number":
-            try:
-                number = float(value)
-            except (TypeError, ValueError):
-                raise OptionError(
-                    f"{self.id} option '{spec.name}' must be a number, not '{value}'"
-                ) from None
-            if not math.isfinite(number):
-                raise OptionError(f"{self.id} option '{spec.name}' must be finite")
-            return number
-        if spec.kind == "yes/no":
-            if isinstance(value, bool):
-                return value
-            text = str(value).strip().lower()
-            if text in _YES:
-                return True
-            if text in _NO:
-                return False
-            raise OptionError(f"{self.id} option '{spec.name}' must be yes or no, not '{value}'")
-        text = str(value).strip().lower()
-        if spec.choices and text not in spec.choices:
-            raise OptionError(
-                f"{self.id} option '{spec.name}' must be one of "
-                f"{', '.join(spec.choices)}, not '{value}'"
-            )
-        return text
-
-    def check_options(self, options: dict[str, Any]) -> None:
-        """Hook for checks across options (for example low < high)."""
-
-    def fit(self, x: np.ndarray, options: dict[str, Any]) -> FitResult:
-        raise NotImplementedError
-
-    # ``forward`` and ``inverse`` take an optional ``out`` array of the same shape; the
-    # methods that map in place (passes_nonfinite) write into it, the others may ignore it.
-    # Always use the returned array.
-    def forward(
-        self, x: np.ndarray, params: Mapping[str, Any], out: np.ndarray | None = None
-    ) -> np.ndarray:
-        raise NotImplementedError
-
-    def inverse(
-        self, y: np.ndarray, params: Mapping[str, Any], out: np.ndarray | None = None
-    ) -> np.ndarray:
-        raise NotImplementedError
-
-    #: True when ``fit`` may be given NaN among the values and leaves them out itself
-    #: (the plan then need not copy the finite values out first).
-    fit_ignores_nan: bool = False
-
-    #: True when ``forward`` and ``inverse`` already keep NaN as NaN and pass infinities
-    #: through unchanged (the affine methods with a positive scale), so that the whole
-    #: array can be mapped in one go without masking.
-    passes_nonfinite: bool = False
-
-    def forward_all(
-        self, x: np.ndarray, params: Mapping[str, Any], out: np.ndarray | None = None
-    ) -> np.ndarray:
-        """``forward`` on any float array: NaN stays NaN, infinities pass through unchanged."""
-        return _through_nonfinite(x, self.forward, params, self.passes_nonfinite, out)
-
-    def inverse_all(
-        self, y: np.ndarray, params: Mapping[str, Any], out: np.ndarray | None = None
-    ) -> np.ndarray:
-        """``inverse`` on any float array: NaN stays NaN, infinities pass through unchanged."""
-        return _through_nonfinite(y, self.inverse, params, self.passes_nonfinite, out)
-
-
-def _through_nonfinite(x, func, params, passes_nonfinite: bool, out=None) -> np.ndarray:
-    x = np.asarray(x, dtype=np.float64)
-    if passes_nonfinite:
-        with np.errstate(all="ignore"):
-            return np.asarray(func(x, params, out=out), dtype=np.float64)
-    with np.errstate(all="ignore"):
-        out = np.asarray(func(x, params), dtype=np.float64)
-    if out is x or np.may_share_memory(out, x):
-        out = out.copy()
-    nonfinite = ~np.isfinite(x)
-    if nonfinite.any():
-        np.copyto(out, x, where=nonfinite)
-    return out
-
-
-def _finite_range(x: np.ndarray) -> tuple[float, float]:
-    """min and max, NaN left out (np.fmin/np.fmax skip NaN without copying)."""
-    return float(np.fmin.reduce(x)), float(np.fmax.reduce(x))
-
-
-def _largest_size(x: np.ndarray) -> tuple[float, tuple[float, float]]:
-    """max |x| with NaN left out, and the (min, max) it came from."""
-    lo, hi = _finite_range(x)
-    return max(abs(lo), abs(hi)), (lo, hi)
-
-
-def _keep_nonfinite(x: np.ndarray, value: float, out: np.ndarray | None = None) -> np.ndarray:
-    """``value`` where ``x`` is finite; NaN and infinities of ``x`` kept as they are."""
-    result = np.where(np.isfinite(x), value, x)
-    if out is None:
-        return result
-    out[...] = result
-    return out
-
-
-def _begin(x, out: np.ndarray | None) -> tuple[np.ndarray, np.ndarray]:
-    """``x`` as float64 and the array to write the result into (``out`` or a new one)."""
-    x = np.asarray(x, dtype=np.float64)
-    return x, (np.empty_like(x) if out is None else out)
-
-
-class LeaveAsIs(Method):
+class LeaveAsIs(LinearMethod):
     id = "none"
     name = "leave as is"
     summary = "Keeps the values exactly as they are."
     when_to_use = "For columns the model should see in their own units, and for codes."
     inverse_formula = "x = y"
-    passes_nonfinite = True
 
     def fit(self, x, options):
         return FitResult({})
 
-    def forward(self, x, params, out=None):
-        x, out = _begin(x, out)
-        np.copyto(out, x)
-        return out
-
-    inverse = forward
+    def steps(self, params):
+        return Steps()
 
 
-class MinMax(Method):
+class MinMax(LinearMethod):
     id = "minmax"
     name = "min-max"
-    summary = "Stretches the values so the smallest becomes 'low' and the largest 'high'."
+    summary = (
+        "Stretches the values so the smallest becomes the number in 'Smallest becomes' "
+        "(0 unless you change it) and the largest the number in 'Largest becomes' (1)."
+    )
     when_to_use = (
         "When the model needs a fixed range (often 0 to 1) and there are no extreme outliers."
     )
     option_specs = (
-        OptionSpec("low", 0.0, "the value the smallest number becomes", kind="number"),
-        OptionSpec("high", 1.0, "the value the largest number becomes", kind="number"),
+        OptionSpec(
+            "low",
+            0.0,
+            "the value the smallest number becomes",
+            kind="number",
+            label="Smallest becomes",
+        ),
+        OptionSpec(
+            "high",
+            1.0,
+            "the value the largest number becomes",
+            kind="number",
+            label="Largest becomes",
+        ),
+    )
+    param_specs = (
+        ParamSpec("min", "number", "smallest"),
+        ParamSpec("max", "number", "largest"),
+        ParamSpec("low", "number", "smallest becomes"),
+        ParamSpec("high", "number", "largest becomes"),
     )
     inverse_formula = "x = (y - low) / (high - low) * (max - min) + min"
+    fit_ignores_nan = True
 
     def check_options(self, options):
         if not options["low"] < options["high"]:
             raise OptionError("minmax needs low < high")
 
-    passes_nonfinite = True
-    fit_ignores_nan = True
-
     def fit(self, x, options):
-        lo, hi = _finite_range(x)
+        lo, hi = finite_range(x)
         warnings = []
         if lo == hi:
             warnings.append("all values are the same, so every value becomes 'low'")
@@ -246,46 +105,41 @@ class MinMax(Method):
             data_range=(lo, hi),
         )
 
-    def forward(self, x, params, out=None):
+    def steps(self, params):
         # (x - min) / (max - min) * (high - low) + low, in this order (the design's formula):
         # dividing first keeps tiny and huge spans in range, where (high-low)/span would not.
         lo, hi, low, high = params["min"], params["max"], params["low"], params["high"]
-        x, out = _begin(x, out)
-        if lo == hi:
-            return _keep_nonfinite(x, low, out)
-        span = hi - lo
-        if math.isfinite(span):
-            np.subtract(x, lo, out=out)
-            out /= span
-        else:
-            # The data span more than the largest float: work on halves (exact) instead.
-            np.multiply(x, 0.5, out=out)
-            out -= lo * 0.5
-            out /= hi * 0.5 - lo * 0.5
-        if high - low != 1.0:
-            out *= high - low
-        if low != 0.0:
-            out += low
-        return out
+        return Steps(lo, hi - lo, high - low, low)
+
+    def forward(self, x, params, out=None):
+        if math.isfinite(params["max"] - params["min"]):
+            return super().forward(x, params, out)
+        # The data span more than the largest float: work on halves (exact) instead.
+        return super().forward(np.multiply(x, 0.5), _halved(params), out)
 
     def inverse(self, y, params, out=None):
-        lo, hi, low, high = params["min"], params["max"], params["low"], params["high"]
-        y, out = _begin(y, out)
-        np.subtract(y, low, out=out)
-        if high - low != 1.0:
-            out /= high - low
-        span = hi - lo
-        if math.isfinite(span):
-            out *= span
-            out += lo
-        else:
-            out *= hi * 0.5 - lo * 0.5
-            out += lo * 0.5
-            out *= 2.0
+        if math.isfinite(params["max"] - params["min"]):
+            return super().inverse(y, params, out)
+        out = super().inverse(y, _halved(params), out)
+        out *= 2.0
         return out
 
+    def check_saved(self, params, options, lo, hi):
+        for key, value in (("low", options["low"]), ("high", options["high"])):
+            if params[key] != value:
+                raise ParamError(key, f"does not match the option {key} ({value!r})")
+        if params["min"] != lo:
+            raise ParamError("min", f"does not match the smallest fitted value ({lo!r})")
+        if params["max"] != hi:
+            raise ParamError("max", f"does not match the largest fitted value ({hi!r})")
 
-class ZScore(Method):
+
+def _halved(params):
+    """Min-max parameters for halved values (data spanning more than the largest float)."""
+    return {**params, "min": params["min"] * 0.5, "max": params["max"] * 0.5}
+
+
+class ZScore(LinearMethod):
     id = "zscore"
     name = "z-score"
     summary = "Subtracts the mean and divides by the standard deviation (sd)."
@@ -296,11 +150,19 @@ class ZScore(Method):
             "sample",
             "sample sd (divide by n-1) or population sd (divide by n)",
             choices=("sample", "population"),
+            label="Standard deviation",
+            choice_labels={
+                "sample": "sample (divides by n \u2212 1)",
+                "population": "population (divides by n)",
+            },
         ),
     )
+    param_specs = (
+        ParamSpec("mean", "number", "mean"),
+        ParamSpec("sd", "number", "sd"),
+        ParamSpec("ddof", "int", "sd divides by n minus", says=_sd_words, brief=False),
+    )
     inverse_formula = "x = y * sd + mean"
-
-    passes_nonfinite = True
 
     def fit(self, x, options):
         ddof = 1 if options["sd"] == "sample" else 0
@@ -322,33 +184,41 @@ class ZScore(Method):
             s = 0.0
         return FitResult({"mean": m, "sd": s, "ddof": ddof}, warnings, data_range=(lo, hi))
 
-    def forward(self, x, params, out=None):
-        x, out = _begin(x, out)
-        if params["sd"] == 0:
-            return _keep_nonfinite(x, 0.0, out)
-        np.subtract(x, params["mean"], out=out)
-        out /= params["sd"]
-        return out
+    def steps(self, params):
+        return Steps(params["mean"], params["sd"])
 
-    def inverse(self, y, params, out=None):
-        y, out = _begin(y, out)
-        np.multiply(y, params["sd"], out=out)
-        out += params["mean"]
-        return out
+    def check_saved(self, params, options, lo, hi):
+        if params["ddof"] not in (0, 1):
+            raise ParamError("ddof", "must be 0 (population sd) or 1 (sample sd)")
+        if params["ddof"] != (1 if options["sd"] == "sample" else 0):
+            raise ParamError("ddof", f"does not match the option sd ({options['sd']})")
+        if params["sd"] < 0:
+            raise ParamError("sd", "must be 0 or more")
+        if not near(params["mean"], lo, hi):
+            raise ParamError("mean", f"lies outside the fitted range [{lo!r}, {hi!r}]")
 
 
-class DecimalScaling(Method):
+_MAX_POW10 = 308  # 10.0**308 is the largest power of ten a float holds
+
+
+def _shift_decimal(x: float, j: int) -> float:
+    """``x / 10**j`` with one rounding, as decimal scaling's steps compute it: 10**k is
+    exact in floating point for k <= 22, so dividing (j > 0) or multiplying (j < 0) by it
+    is correctly rounded there."""
+    return x / 10.0**j if j >= 0 else x * 10.0 ** (-j)
+
+
+class DecimalScaling(LinearMethod):
     id = "decimal"
     name = "decimal scaling"
     summary = "Moves the decimal point so that every value lies between -1 and 1."
     when_to_use = "When you want values below 1 in size while keeping them easy to read back."
+    param_specs = (ParamSpec("j", "int", "divided by 10 to the power"),)
     inverse_formula = "x = y * 10^j"
-
-    passes_nonfinite = True
     fit_ignores_nan = True
 
     def fit(self, x, options):
-        biggest, data_range = _largest_size(x)
+        biggest, data_range = largest_size(x)
         if biggest == 0:
             return FitResult(
                 {"j": 0}, ["all values are zero, so nothing is moved (j = 0)"], data_range
@@ -369,36 +239,54 @@ class DecimalScaling(Method):
             )
         return FitResult({"j": int(j)}, data_range=data_range)
 
-    def forward(self, x, params, out=None):
-        x, out = _begin(x, out)
-        return _shift_decimal(x, params["j"], out)
+    def steps(self, params):
+        j = params["j"]
+        return Steps(divide=10.0**j) if j >= 0 else Steps(multiply=10.0 ** (-j))
 
-    def inverse(self, y, params, out=None):
-        y, out = _begin(y, out)
-        return _shift_decimal(y, -params["j"], out)
-
-
-_MAX_POW10 = 308  # 10.0**308 is the largest power of ten a float holds
-
-
-def _shift_decimal(x, j: int, out=None):
-    """``x / 10**j`` with one rounding: 10**k is exact in floating point for k <= 22, so
-    dividing (j > 0) or multiplying (j < 0) by it is correctly rounded there."""
-    if j >= 0:
-        return np.divide(x, 10.0**j, out=out)
-    return np.multiply(x, 10.0 ** (-j), out=out)
+    def check_saved(self, params, options, lo, hi):
+        j = params["j"]
+        if not -_MAX_POW10 <= j <= _MAX_POW10:  # 10.0 ** |j| must be a finite double
+            raise ParamError("j", f"must be between {-_MAX_POW10} and {_MAX_POW10}")
+        biggest = max(abs(lo), abs(hi))
+        if biggest == 0:
+            if j != 0:
+                raise ParamError("j", "must be 0 when every fitted value is 0")
+        elif not (_shift_decimal(biggest, j) < 1 <= _shift_decimal(biggest, j - 1)):
+            raise ParamError("j", f"is not the power of ten for the fitted range [{lo!r}, {hi!r}]")
 
 
-class Robust(Method):
+def robust_scale(q1: float, median: float, q3: float, lo: float, hi: float) -> float:
+    """What robust scaling divides by: the IQR ``q3 - q1``, or 1 when the IQR is 0 or so
+    small that the values from ``lo`` to ``hi`` would scale beyond the float range.
+
+    The fit and the saved-value check both call this, so they always agree.
+    """
+    scale = q3 - q1
+    if not scale > 0:
+        return 1.0
+    with np.errstate(over="ignore"):
+        widest = max(median - lo, hi - median) / scale
+    return scale if math.isfinite(widest) else 1.0
+
+
+class Robust(LinearMethod):
     id = "robust"
     name = "robust (median/IQR)"
     summary = "Subtracts the median and divides by the spread of the middle half (IQR)."
     when_to_use = "When a few extreme values would distort the mean and sd."
+    param_specs = (
+        ParamSpec("median", "number", "median"),
+        ParamSpec("q1", "number", "first quartile"),
+        ParamSpec("q3", "number", "third quartile"),
+        ParamSpec("scale", "number", "spread (third \u2212 first quartile)"),
+        ParamSpec("quantile_rule", "text", "quartiles by", brief=False),
+    )
     inverse_formula = "x = y * scale + median   (scale = q3 - q1)"
+    slow_fit = True  # quartiles sort the values
 
     def fit(self, x, options):
         q1, median, q3 = numerics.quantiles(x, (0.25, 0.5, 0.75))
-        lo, hi = _finite_range(x)
+        lo, hi = finite_range(x)
         scale = robust_scale(q1, median, q3, lo, hi)
         warnings = []
         if not q3 - q1 > 0:
@@ -423,61 +311,48 @@ class Robust(Method):
             data_range=(lo, hi),
         )
 
-    passes_nonfinite = True
+    def steps(self, params):
+        return Steps(params["median"], params["scale"])
 
-    def forward(self, x, params, out=None):
-        x, out = _begin(x, out)
-        np.subtract(x, params["median"], out=out)
-        out /= params["scale"]
-        return out
-
-    def inverse(self, y, params, out=None):
-        y, out = _begin(y, out)
-        np.multiply(y, params["scale"], out=out)
-        out += params["median"]
-        return out
-
-
-def robust_scale(q1: float, median: float, q3: float, lo: float, hi: float) -> float:
-    """What robust scaling divides by: the IQR ``q3 - q1``, or 1 when the IQR is 0 or so
-    small that the values from ``lo`` to ``hi`` would scale beyond the float range.
-
-    The fit and the project file's validation both call this, so they always agree.
-    """
-    scale = q3 - q1
-    if not scale > 0:
-        return 1.0
-    with np.errstate(over="ignore"):
-        widest = max(median - lo, hi - median) / scale
-    return scale if math.isfinite(widest) else 1.0
+    def check_saved(self, params, options, lo, hi):
+        q1, median, q3 = params["q1"], params["median"], params["q3"]
+        if not lo <= q1 <= median <= q3 <= hi:
+            raise ParamError(
+                "median", "the quartiles must satisfy min <= q1 <= median <= q3 <= max"
+            )
+        expected = robust_scale(q1, median, q3, lo, hi)
+        if params["scale"] != expected:
+            if expected == q3 - q1:
+                raise ParamError("scale", f"must be q3 - q1 ({expected!r})")
+            why = "q1 equals q3" if not q3 > q1 else "the IQR is too narrow to divide by"
+            raise ParamError("scale", f"must be 1 ({why})")
 
 
-class MaxAbs(Method):
+class MaxAbs(LinearMethod):
     id = "maxabs"
     name = "max-abs"
     summary = "Divides by the largest absolute value, so values lie between -1 and 1."
     when_to_use = "For columns with many zeros or meaningful signs: zeros stay zero."
+    param_specs = (ParamSpec("maxabs", "number", "largest size"),)
     inverse_formula = "x = y * maxabs"
-
     fit_ignores_nan = True
 
     def fit(self, x, options):
-        biggest, data_range = _largest_size(x)
+        biggest, data_range = largest_size(x)
         if biggest == 0:
             return FitResult(
                 {"maxabs": 1.0}, ["all values are zero; dividing by 1 instead"], data_range
             )
         return FitResult({"maxabs": biggest}, data_range=data_range)
 
-    passes_nonfinite = True
+    def steps(self, params):
+        return Steps(divide=params["maxabs"])
 
-    def forward(self, x, params, out=None):
-        x, out = _begin(x, out)
-        return np.divide(x, params["maxabs"], out=out)
-
-    def inverse(self, y, params, out=None):
-        y, out = _begin(y, out)
-        return np.multiply(y, params["maxabs"], out=out)
+    def check_saved(self, params, options, lo, hi):
+        biggest = max(abs(lo), abs(hi))
+        expected = biggest if biggest > 0 else 1.0
+        if params["maxabs"] != expected:
+            raise ParamError("maxabs", f"must be the largest absolute fitted value ({expected!r})")
 
 
 _LOG = {
@@ -493,7 +368,7 @@ def log_shift(lo: float) -> float:
     Common practice: ``1 - lo``, so that the smallest value becomes 1 (its log is 0). When
     ``lo`` is so large in size that ``1 - lo`` rounds to ``-lo`` (from about -9e15 on), the
     shift is raised to the next floats until ``lo + shift`` is above 0. The fit and the
-    project file's validation both call this. FitError when no float shift can do it.
+    saved-value check both call this. FitError when no float shift can do it.
     """
     shift = 1.0 - lo
     for _ in range(4):  # one step is enough: lo + shift is then one unit in the last place
@@ -514,8 +389,22 @@ class Logarithm(Method):
     name = "logarithm"
     summary = "Takes the logarithm of each value (after adding a shift if needed)."
     when_to_use = "For positive values spread over several orders of magnitude."
-    option_specs = (OptionSpec("base", "e", "the base of the logarithm", choices=("e", "10", "2")),)
+    option_specs = (
+        OptionSpec(
+            "base",
+            "e",
+            "the base of the logarithm",
+            choices=("e", "10", "2"),
+            label="Logarithm base",
+            choice_labels={"e": "e (natural logarithm)"},
+        ),
+    )
+    param_specs = (
+        ParamSpec("base", "text", "logarithm base", brief=False),
+        ParamSpec("shift", "number", "added first"),
+    )
     inverse_formula = "x = base^y - shift"
+    slow_fit = True  # the scaled figures need a pass over every value
 
     def fit(self, x, options):
         lo = float(np.min(x))
@@ -543,16 +432,65 @@ class Logarithm(Method):
         with np.errstate(over="ignore"):
             return exp(y) - params["shift"]
 
+    def check_saved(self, params, options, lo, hi):
+        if params["base"] != options["base"]:
+            raise ParamError("base", f"does not match the option base ({options['base']})")
+        shift = params["shift"]
+        try:
+            fit_shift: float | None = log_shift(lo)
+        except FitError:
+            fit_shift = None
+        if shift != 0.0 and shift != fit_shift:
+            if fit_shift is None:
+                raise ParamError(
+                    "shift", "must be 0 (no shift can lift the smallest fitted value above 0)"
+                )
+            if fit_shift == 1.0 - lo:
+                raise ParamError("shift", f"must be 0 or 1 - min ({fit_shift!r})")
+            raise ParamError(
+                "shift", f"must be 0 or 1 - min made just large enough ({fit_shift!r})"
+            )
+        if not lo + shift > 0:
+            raise ParamError("shift", "must make every fitted value above 0")
+
 
 class _PowerMethod(Method):
+    """Box-Cox and Yeo-Johnson: a lambda found by maximum likelihood, then (by default,
+    the same everywhere) standardized to mean 0 and sd 1."""
+
     option_specs = (
         OptionSpec(
             "standardize",
-            False,
-            "also subtract the mean and divide by the sd afterwards",
+            True,
+            "also subtract the mean and divide by the sd afterwards (the default)",
             kind="yes/no",
+            label="Standardize afterwards (mean 0, sd 1)",
         ),
     )
+    param_specs = (
+        ParamSpec("lambda", "number", "lambda"),
+        ParamSpec(
+            "standardize",
+            "bool",
+            "standardized",
+            says=lambda v: (
+                "standardized afterwards (mean 0, sd 1)" if v else "not standardized afterwards"
+            ),
+            brief=False,
+        ),
+        ParamSpec("mean", "number", "mean", present=_standardized, absent_when=_UNSTANDARDIZED),
+        ParamSpec("sd", "number", "sd", present=_standardized, absent_when=_UNSTANDARDIZED),
+        ParamSpec(
+            "ddof",
+            "int",
+            "sd divides by n minus",
+            says=_sd_words,
+            present=_standardized,
+            brief=False,
+            absent_when=_UNSTANDARDIZED,
+        ),
+    )
+    slow_fit = True  # a search for lambda
 
     def _standardize(
         self, transformed: np.ndarray, options: dict, params: dict, warnings: list
@@ -602,11 +540,23 @@ class _PowerMethod(Method):
             return y * params["sd"] + params["mean"]
         return y
 
+    def check_saved(self, params, options, lo, hi):
+        if params["standardize"] != options["standardize"]:
+            raise ParamError("standardize", "does not match the option standardize")
+        if params["standardize"]:
+            if not params["sd"] > 0:
+                raise ParamError("sd", "must be above 0")
+            if params["ddof"] != 1:
+                raise ParamError("ddof", "must be 1 (sample sd)")
+
 
 class BoxCox(_PowerMethod):
     id = "boxcox"
     name = "Box-Cox"
-    summary = "A power transform that makes skewed positive values more bell-shaped."
+    summary = (
+        "A power transform that makes skewed positive values more bell-shaped, then "
+        "standardizes them (mean 0, sd 1) unless you switch that off."
+    )
     when_to_use = "For strictly positive, skewed columns (for other signs use Yeo-Johnson)."
     inverse_formula = "x = (lambda * y' + 1)^(1/lambda), or exp(y') if lambda = 0; y' = y * sd + mean if standardized"
 
@@ -636,11 +586,19 @@ class BoxCox(_PowerMethod):
     def inverse(self, y, params, out=None):  # out: see Method.forward (not used here)
         return power.boxcox_inverse(self._unscale(y, params), params["lambda"])
 
+    def check_saved(self, params, options, lo, hi):
+        super().check_saved(params, options, lo, hi)
+        if not lo > 0:
+            raise ParamError("min", "Box-Cox needs values above 0", about_range=True)
+
 
 class YeoJohnson(_PowerMethod):
     id = "yeojohnson"
     name = "Yeo-Johnson"
-    summary = "A power transform like Box-Cox that also accepts zero and negative values."
+    summary = (
+        "A power transform like Box-Cox that also accepts zero and negative values, then "
+        "standardizes them (mean 0, sd 1) unless you switch that off."
+    )
     when_to_use = "For skewed columns that contain zeros or negative values."
     inverse_formula = (
         "for y' >= 0: x = (lambda * y' + 1)^(1/lambda) - 1; "

@@ -17,7 +17,8 @@ import numpy as np
 import pandas as pd
 
 from ..errors import ColumnError, ScalewrightError
-from .methods import FitResult, Method, get_method
+from .method_base import FitResult, Method
+from .methods import get_method
 
 
 @dataclass(frozen=True)

@@ -28,22 +28,6 @@ from ..errors import ScalewrightError
 from . import commands, theme
 from .state import FIT_WHERE_KINDS, Session
 
-# Plain words for each option (the engine's option names stay the stored names).
-OPTION_LABELS = {
-    ("minmax", "low"): "Smallest becomes",
-    ("minmax", "high"): "Largest becomes",
-    ("zscore", "sd"): "Standard deviation",
-    ("log", "base"): "Logarithm base",
-    ("boxcox", "standardize"): "Standardize afterwards (mean 0, sd 1)",
-    ("yeojohnson", "standardize"): "Standardize afterwards (mean 0, sd 1)",
-}
-CHOICE_LABELS = {
-    ("sd", "sample"): "sample (divide by n \u2212 1)",
-    ("sd", "population"): "population (divide by n)",
-    ("base", "e"): "e (natural logarithm)",
-    ("base", "10"): "10",
-    ("base", "2"): "2",
-}
 ALL_ROWS = "all rows"
 NO_GROUPS = "no groups"
 MAX_FIT_VALUES = 50  # columns with more different values are not offered for choosing rows
@@ -364,7 +348,7 @@ class MethodPanel(QWidget):
         for spec in method.option_specs:
             widget = self._option_widget(method.id, spec)
             widgets[spec.name] = widget
-            text = OPTION_LABELS.get((method.id, spec.name), spec.name)
+            text = spec.shown_label
             if isinstance(widget, QCheckBox):
                 widget.setText(text)
                 form.addRow(widget)
@@ -394,7 +378,7 @@ class MethodPanel(QWidget):
         else:
             w = QComboBox()
             for choice in spec.choices:
-                w.addItem(CHOICE_LABELS.get((name, choice), choice), choice)
+                w.addItem(spec.choice_words(choice), choice)
             w.activated.connect(lambda _i, n=name, box=w: self._on_option(n, box.currentData()))
         w.setToolTip(spec.help[:1].upper() + spec.help[1:])
         return w

@@ -36,6 +36,7 @@ import pandas as pd
 from psygnal import Signal
 
 from ..engine import (
+    METHODS,
     ColumnChoice,
     ColumnSummary,
     FitSettings,
@@ -66,12 +67,12 @@ BINS = 30
 # and the power transforms), take tens of milliseconds at a million values: from this many
 # values on they run in the background when a runner is attached, as do fits per group.
 # The straight-line methods are one pass over the values and are fitted at once.
-BACKGROUND_METHODS = frozenset({"robust", "log", "boxcox", "yeojohnson"})
+BACKGROUND_METHODS = frozenset(m.id for m in METHODS.values() if m.slow_fit)
 BACKGROUND_VALUES = 200_000
 
 # Methods whose forward map is a straight line a*x + b: their scaled summary figures follow
 # exactly from the original ones, without touching the values.
-AFFINE_METHODS = frozenset({"none", "minmax", "zscore", "decimal", "robust", "maxabs"})
+AFFINE_METHODS = frozenset(m.id for m in METHODS.values() if m.linear)
 
 # Kinds of columns whose values can say which rows to fit on ("Fit on rows where").
 FIT_WHERE_KINDS = ("text", "boolean", "number")
@@ -790,7 +791,7 @@ class Session:
             self.dirty_changed.emit(dirty)
 
     def describe_fit(self, label: str) -> str:
-        """The fitted parameters in one plain line, e.g. 'mean 75.5, sd 36.7 (sample sd)'."""
+        """The fitted parameters in one plain line, e.g. 'mean 75.5, sd 36.7, sample sd (...)'."""
         if self.fitting(label):
             return "Fitting…"
         state = self.fit_state(label)
@@ -798,19 +799,9 @@ class Session:
             return "Kept as it is."
         if isinstance(state, str):
             return state
-        p = state.pooled.params
         method = get_method(state.method)
-        parts = []
-        for key, value in p.items():
-            if key in ("quantile_rule", "ddof", "standardize"):
-                continue
-            if isinstance(value, float):
-                parts.append(f"{key} {value:.6g}")
-            else:
-                parts.append(f"{key} {value}")
-        text = f"Fitted on {state.pooled.n:,} values: " + ", ".join(parts)
-        if "ddof" in p:
-            text += " (sample sd)" if p["ddof"] == 1 else " (population sd)"
+        words = method.describe_params(state.pooled.params, digits=6)
+        text = f"Fitted on {state.pooled.n:,} values: {words}"
         if state.groups:
             text += f"; one set per group ({len(state.groups)} groups)"
         return f"{method.name}. {text}."

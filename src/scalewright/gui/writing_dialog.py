@@ -38,45 +38,11 @@ from .errors import details_of, plain_message
 from .file_rows import FileRow, OutputRow
 from .widgets import ERROR_STYLE, MUTED_STYLE, OK_STYLE, escape_html, message_label
 
-# The engine's parameter names, in words a reader of the dialog knows.
-PARAMETER_WORDS = {
-    "min": "smallest",
-    "max": "largest",
-    "low": "smallest becomes",
-    "high": "largest becomes",
-    "q1": "first quartile",
-    "q3": "third quartile",
-    "scale": "spread (q3 − q1)",
-    "maxabs": "largest size",
-    "j": "divided by 10 to the power",
-    "shift": "added first",
-    "base": "logarithm base",
-    "quantile_rule": "quartiles by",
-}
-# Switches and settings said as what they mean rather than as name = value.
-PARAMETER_SAYINGS = {
-    ("ddof", 1): "sample sd (divided by n − 1)",
-    ("ddof", 0): "population sd (divided by n)",
-    ("standardize", True): "standardized afterwards (mean 0, sd 1)",
-    ("standardize", False): "not standardized afterwards",
-}
-
 
 def saved_parameters(fc) -> str:
     """A fitted column's pooled parameters in one line of plain words, e.g. 'mean 75.5,
-    sd 36.7, sample sd (divided by n − 1)'."""
-    parts = []
-    for key, value in fc.pooled.params.items():
-        said = PARAMETER_SAYINGS.get((key, value))
-        if said is not None:
-            parts.append(said)
-            continue
-        if isinstance(value, bool):
-            value = "yes" if value else "no"
-        elif isinstance(value, float):
-            value = f"{value:.10g}"
-        parts.append(f"{PARAMETER_WORDS.get(key, key)} {value}")
-    return ", ".join(parts)
+    sd 36.7, sample sd (divides by n − 1)': the method's own description."""
+    return engine.get_method(fc.method).describe_params(fc.pooled.params)
 
 
 def boxed(title: str, *widgets: QWidget) -> QGroupBox:
