@@ -256,6 +256,17 @@ class Method:
     ) -> np.ndarray:
         raise NotImplementedError
 
+    # SQL (sqlglot expressions; see engine.sql_terms and the platform package). Each takes
+    # the expression of a finite value and returns that of its mapped value; the caller
+    # passes NULL and infinities through and turns a non-finite result into NULL.
+    def sql_forward(self, x, params: Mapping[str, Any]):
+        """The scaled value of the SQL expression ``x``, with ``params`` as exact literals."""
+        raise NotImplementedError
+
+    def sql_inverse(self, y, params: Mapping[str, Any]):
+        """The original value of the SQL expression ``y`` (a scaled value)."""
+        raise NotImplementedError
+
     def forward_all(
         self, x: np.ndarray, params: Mapping[str, Any], out: np.ndarray | None = None
     ) -> np.ndarray:
@@ -325,6 +336,34 @@ class LinearMethod(Method):
             out *= s.divide  # a divisor of 0 (a constant column) turns every value back to it
         if s.subtract != 0.0:
             out += s.subtract
+        return out
+
+    def sql_forward(self, x, params):
+        from . import sql_terms as S
+
+        s = self.steps(params)
+        if s.divide == 0:
+            return S.num(s.add)
+        out = S.sub(x, S.num(s.subtract)) if s.subtract != 0.0 else x
+        if s.divide != 1.0:
+            out = S.div(out, S.num(s.divide))
+        if s.multiply != 1.0:
+            out = S.mul(out, S.num(s.multiply))
+        if s.add != 0.0:
+            out = S.add(out, S.num(s.add))
+        return out
+
+    def sql_inverse(self, y, params):
+        from . import sql_terms as S
+
+        s = self.steps(params)
+        out = S.sub(y, S.num(s.add)) if s.add != 0.0 else y
+        if s.multiply != 1.0:
+            out = S.div(out, S.num(s.multiply))
+        if s.divide != 1.0:
+            out = S.mul(out, S.num(s.divide))
+        if s.subtract != 0.0:
+            out = S.add(out, S.num(s.subtract))
         return out
 
 

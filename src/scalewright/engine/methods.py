@@ -124,6 +124,20 @@ class MinMax(LinearMethod):
         out *= 2.0
         return out
 
+    def sql_forward(self, x, params):
+        if math.isfinite(params["max"] - params["min"]):
+            return super().sql_forward(x, params)
+        from . import sql_terms as S
+
+        return super().sql_forward(S.mul(x, S.num(0.5)), _halved(params))
+
+    def sql_inverse(self, y, params):
+        if math.isfinite(params["max"] - params["min"]):
+            return super().sql_inverse(y, params)
+        from . import sql_terms as S
+
+        return S.mul(super().sql_inverse(y, _halved(params)), S.num(2.0))
+
     def check_saved(self, params, options, lo, hi):
         for key, value in (("low", options["low"]), ("high", options["high"])):
             if params[key] != value:
@@ -432,6 +446,24 @@ class Logarithm(Method):
         with np.errstate(over="ignore"):
             return exp(y) - params["shift"]
 
+    def sql_forward(self, x, params):
+        from . import sql_terms as S
+
+        shifted = S.add(x, S.num(params["shift"])) if params["shift"] else x
+        out = S.ln(shifted)
+        if params["base"] != "e":
+            out = S.div(out, S.num(math.log(float(params["base"]))))
+        return S.case((S.gt(shifted.copy(), S.num(0.0)), out))  # no log of 0 or below
+
+    def sql_inverse(self, y, params):
+        from . import sql_terms as S
+
+        if params["base"] == "e":
+            out = S.exp_(y)
+        else:
+            out = S.exp_(S.mul(y, S.num(math.log(float(params["base"])))))
+        return S.sub(out, S.num(params["shift"])) if params["shift"] else out
+
     def check_saved(self, params, options, lo, hi):
         if params["base"] != options["base"]:
             raise ParamError("base", f"does not match the option base ({options['base']})")
@@ -540,6 +572,20 @@ class _PowerMethod(Method):
             return y * params["sd"] + params["mean"]
         return y
 
+    def _sql_scale(self, t, params):
+        from . import sql_terms as S
+
+        if params.get("standardize"):
+            return S.div(S.sub(t, S.num(params["mean"])), S.num(params["sd"]))
+        return t
+
+    def _sql_unscale(self, y, params):
+        from . import sql_terms as S
+
+        if params.get("standardize"):
+            return S.add(S.mul(y, S.num(params["sd"])), S.num(params["mean"]))
+        return y
+
     def check_saved(self, params, options, lo, hi):
         if params["standardize"] != options["standardize"]:
             raise ParamError("standardize", "does not match the option standardize")
@@ -586,6 +632,24 @@ class BoxCox(_PowerMethod):
     def inverse(self, y, params, out=None):  # out: see Method.forward (not used here)
         return power.boxcox_inverse(self._unscale(y, params), params["lambda"])
 
+    def sql_forward(self, x, params):
+        from . import sql_terms as S
+
+        lam = params["lambda"]
+        t = S.ln(x) if lam == 0 else S.div(S.expm1(S.mul(S.num(lam), S.ln(x))), S.num(lam))
+        return S.case((S.gt(x.copy(), S.num(0.0)), self._sql_scale(t, params)))
+
+    def sql_inverse(self, y, params):
+        from . import sql_terms as S
+
+        lam = params["lambda"]
+        y = self._sql_unscale(y, params)
+        if lam == 0:
+            return S.exp_(y)
+        arg = S.mul(S.num(lam), y)  # no original value where lambda * y <= -1
+        out = S.exp_(S.div(S.log1p(arg), S.num(lam)))
+        return S.case((S.gt(arg.copy(), S.num(-1.0)), out))
+
     def check_saved(self, params, options, lo, hi):
         super().check_saved(params, options, lo, hi)
         if not lo > 0:
@@ -621,6 +685,39 @@ class YeoJohnson(_PowerMethod):
 
     def inverse(self, y, params, out=None):  # out: see Method.forward (not used here)
         return power.yeojohnson_inverse(self._unscale(y, params), params["lambda"])
+
+    def sql_forward(self, x, params):
+        from . import sql_terms as S
+
+        lam = params["lambda"]
+        pos = S.log1p(x)
+        if lam != 0:
+            pos = S.div(S.expm1(S.mul(S.num(lam), pos)), S.num(lam))
+        neg = S.log1p(S.neg(x.copy()))
+        if lam == 2:
+            neg = S.neg(neg)
+        else:
+            neg = S.neg(S.div(S.expm1(S.mul(S.num(2.0 - lam), neg)), S.num(2.0 - lam)))
+        t = S.case((S.ge(x.copy(), S.num(0.0)), pos), default=neg)
+        return self._sql_scale(t, params)
+
+    def sql_inverse(self, y, params):
+        from . import sql_terms as S
+
+        lam = params["lambda"]
+        y = self._sql_unscale(y, params)
+        if lam == 0:
+            pos = S.expm1(y)
+        else:
+            arg = S.mul(S.num(lam), y)
+            pos = S.case((S.gt(arg, S.num(-1.0)), S.expm1(S.div(S.log1p(arg.copy()), S.num(lam)))))
+        if lam == 2:
+            neg = S.neg(S.expm1(S.neg(y.copy())))
+        else:
+            arg = S.mul(S.num(-(2.0 - lam)), y.copy())
+            back = S.neg(S.expm1(S.div(S.log1p(arg.copy()), S.num(2.0 - lam))))
+            neg = S.case((S.gt(arg, S.num(-1.0)), back))
+        return S.case((S.ge(y.copy(), S.num(0.0)), pos), default=neg)
 
 
 METHODS: dict[str, Method] = {

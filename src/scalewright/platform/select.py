@@ -17,8 +17,9 @@ import math
 from sqlglot import exp
 
 from ..engine import FittedColumn, ParamSet, get_method, value_key
+from ..engine import sql_terms as S
 from ..errors import ProjectError
-from . import sqlexpr as S
+from .dialects import for_dialect
 from .names import check_dialect, platform_names
 
 
@@ -27,25 +28,24 @@ def _method_sql(method_id: str, restoring: bool):
     return method.sql_inverse if restoring else method.sql_forward
 
 
-def group_condition(group: exp.Expression, key: str, numeric: bool) -> exp.Expression:
-    """The test that a row belongs to the group with this key (see ``keys_are_numbers``)."""
-    if numeric:
-        return S.eq(group, S.num(float(key)))
-    text = exp.Trim(this=exp.cast(group, exp.DataType.build("varchar")))
-    return S.eq(text, exp.Literal.string(key))
+def key_condition(column: exp.Expression, key: str) -> exp.Expression:
+    """The test that a row's value in ``column`` has this key (``engine.value_key``).
 
-
-def keys_are_numbers(keys) -> bool:
-    """True when every group key is a number as the engine writes it (``3``, ``2.5``): the
-    grouping column was numeric, so the platform's column is compared as a number."""
-    for key in keys:
-        try:
-            number = float(key)
-        except ValueError:
-            return False
-        if not math.isfinite(number) or value_key(number) != key:
-            return False
-    return True
+    Compared as trimmed text, whatever the platform's type of the column: a whole number
+    key ``3`` matches the text ``3`` and ``3.0`` (how an integer and a double column read
+    as text), so the test holds for text, integer and double columns alike.
+    """
+    text = exp.Trim(this=exp.cast(column, exp.DataType.build("varchar")))
+    forms = [key]
+    try:
+        number = float(key)
+    except ValueError:
+        number = math.nan
+    if math.isfinite(number) and number.is_integer() and value_key(number) == key:
+        forms.append(f"{key}.0")
+    if len(forms) == 1:
+        return S.eq(text, exp.Literal.string(key))
+    return exp.In(this=text, expressions=[exp.Literal.string(f) for f in forms])
 
 
 def _clipped(x: exp.Expression, ps: ParamSet) -> exp.Expression:
@@ -77,7 +77,10 @@ def mapped_body(
     if group is not None and fc.groups:
         numeric = keys_are_numbers(fc.groups)
         return S.case(
-            *[(group_condition(group.copy(), key, numeric), one(ps)) for key, ps in fc.groups.items()],
+            *[
+                (group_condition(group.copy(), key, numeric), one(ps))
+                for key, ps in fc.groups.items()
+            ],
             default=one(fc.pooled),
         )
     return one(fc.pooled)
@@ -163,4 +166,4 @@ def select_sql(
     """The SELECT as text in ``dialect``."""
     dialect = check_dialect(dialect)
     tree = build_select(project, restoring=restoring, clip=clip, table=table)
-    return S.for_dialect(tree, dialect).sql(dialect=dialect, pretty=pretty)
+    return for_dialect(tree, dialect).sql(dialect=dialect, pretty=pretty)

@@ -1,12 +1,16 @@
-"""Small sqlglot expression builders shared by the per-method SQL and the query builders.
+"""The SQL vocabulary the methods write their formulas in (sqlglot expressions).
+
+Imported only inside the methods' ``sql_forward`` / ``sql_inverse`` and by the
+``platform`` package, so that ``import scalewright.engine`` never loads sqlglot.
 
 Everything returns sqlglot expressions (one tree, written out per dialect at the end).
 Numbers are written as Python's ``repr`` of the float (the shortest text that reads back to
 the same double) inside ``CAST(... AS DOUBLE)``, so that no dialect keeps them as DECIMAL
 and every dialect reads back the very same double.
 
-Most SQL dialects have no ``expm1`` or ``log1p``; the ones here are the classic accurate
-forms (Kahan's ``(u - 1) * x / ln(u)`` with ``u = exp(x)``, and ``ln(u) * x / (u - 1)`` with
+Most SQL dialects have no ``expm1`` or ``log1p``: they are marked here as functions of
+those names and written out per dialect by ``scalewright.platform.dialects`` in the
+classic accurate forms (Kahan's ``(u - 1) * x / ln(u)`` with ``u = exp(x)``, and ``ln(u) * x / (u - 1)`` with
 ``u = 1 + x``; Goldberg 1991, "What every computer scientist should know about
 floating-point arithmetic", theorem 4), which stay within a few units in the last place.
 """
@@ -115,43 +119,6 @@ def expm1(x: exp.Expression) -> exp.Expression:
 def log1p(x: exp.Expression) -> exp.Expression:
     """ln(1 + x) accurately, like ``expm1``; the caller guards the domain (x > -1)."""
     return exp.Anonymous(this="LOG1P", expressions=[x])
-
-
-#: Dialects with EXPM1 and LOG1P of their own.
-_NATIVE_EXPM1_LOG1P = {"spark", "databricks", "hive"}
-
-
-def _kahan_expm1(x: exp.Expression) -> exp.Expression:
-    """u = exp(x); x if u = 1, -1 if u = 0, else (u - 1) * x / ln(u) (Kahan)."""
-    u = exp_(x)
-    return case(
-        (eq(u, exp.Literal.number(1)), x.copy()),
-        (eq(u.copy(), exp.Literal.number(0)), num(-1.0)),
-        default=div(mul(sub(u.copy(), exp.Literal.number(1)), x.copy()), ln(u.copy())),
-    )
-
-
-def _kahan_log1p(x: exp.Expression) -> exp.Expression:
-    """u = 1 + x; x if u = 1, else ln(u) * x / (u - 1) (Goldberg 1991, theorem 4)."""
-    u = add(exp.Literal.number(1), x)
-    return case(
-        (eq(u, exp.Literal.number(1)), x.copy()),
-        default=div(mul(ln(u.copy()), x.copy()), sub(u.copy(), exp.Literal.number(1))),
-    )
-
-
-def for_dialect(tree: exp.Expression, dialect: str) -> exp.Expression:
-    """The tree with EXPM1/LOG1P written out where ``dialect`` has no such functions."""
-    if dialect in _NATIVE_EXPM1_LOG1P:
-        return tree
-
-    def lower(node: exp.Expression) -> exp.Expression:
-        if isinstance(node, exp.Anonymous) and node.name.upper() in _WRITTEN_OUT:
-            return _WRITTEN_OUT[node.name.upper()](node.expressions[0].copy().transform(lower))
-        return node
-
-    _WRITTEN_OUT = {"EXPM1": _kahan_expm1, "LOG1P": _kahan_log1p}
-    return tree.copy().transform(lower)
 
 
 def column(name: str) -> exp.Column:
