@@ -75,12 +75,8 @@ def mapped_body(
         return build(source, ps.params)
 
     if group is not None and fc.groups:
-        numeric = keys_are_numbers(fc.groups)
         return S.case(
-            *[
-                (group_condition(group.copy(), key, numeric), one(ps))
-                for key, ps in fc.groups.items()
-            ],
+            *[(key_condition(group.copy(), key), one(ps)) for key, ps in fc.groups.items()],
             default=one(fc.pooled),
         )
     return one(fc.pooled)
