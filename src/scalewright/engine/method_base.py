@@ -103,6 +103,27 @@ class FitResult(dict):
         self.data_range = data_range
 
 
+@dataclass(frozen=True)
+class ValueSummary:
+    """What a fit needs of a column's values when they are not all at hand (a file larger
+    than memory, a table in a data platform): aggregates computed where the data lives.
+
+    ``n``, ``min`` and ``max`` (finite values only) are always there; the rest only when
+    the method's ``summary_needs`` asks for them.
+    """
+
+    n: int
+    min: float
+    max: float
+    mean: float | None = None  # "moments": two-pass mean ...
+    sq_dev: float | None = None  # ... and sum of squared deviations from it
+    quartiles: tuple[float, float, float] | None = None  # "quartiles": q1, median, q3 (type 7)
+    lam: float | None = None  # "lambda": the power methods' maximum-likelihood lambda
+    lam_constrained: bool = False
+    t_mean: float | None = None  # "lambda" and standardized: moments of the transformed values
+    t_sq_dev: float | None = None
+
+
 def format_number(value: float, digits: int = 10) -> str:
     """A number for people: ``digits`` significant digits, never a negative zero."""
     if isinstance(value, bool):
@@ -255,6 +276,19 @@ class Method:
         self, y: np.ndarray, params: Mapping[str, Any], out: np.ndarray | None = None
     ) -> np.ndarray:
         raise NotImplementedError
+
+    #: What ``fit_summary`` needs besides n, min and max: "moments", "quartiles", "lambda".
+    summary_needs: frozenset[str] = frozenset()
+
+    def fit_summary(self, summary: ValueSummary, options: dict[str, Any]) -> FitResult:
+        """``fit`` from aggregates instead of the values, with the very same result.
+
+        By default the fit depends only on the smallest and largest value (min-max,
+        decimal scaling, max-abs, the log shift), so it is ``fit`` on those two.
+        """
+        result = self.fit(np.array([summary.min, summary.max]), options)
+        result.data_range = (summary.min, summary.max)
+        return result
 
     # SQL (sqlglot expressions; see engine.sql_terms and the platform package). Each takes
     # the expression of a finite value and returns that of its mapped value; the caller

@@ -178,6 +178,8 @@ class ZScore(LinearMethod):
     )
     inverse_formula = "x = y * sd + mean"
 
+    summary_needs = frozenset({"moments"})
+
     def fit(self, x, options):
         ddof = 1 if options["sd"] == "sample" else 0
         lo, hi = float(np.min(x)), float(np.max(x))
@@ -187,11 +189,24 @@ class ZScore(LinearMethod):
             m, s = float(x[0]), 0.0
         else:
             m, s = numerics.mean_sd(x, ddof=ddof)
+        return self._result(m, s, ddof, x.size, lo, hi)
+
+    def fit_summary(self, summary, options):
+        ddof = 1 if options["sd"] == "sample" else 0
+        lo, hi, n = summary.min, summary.max, summary.n
+        if lo == hi:
+            m, s = lo, 0.0
+        else:
+            m = summary.mean
+            s = math.sqrt(max(summary.sq_dev, 0.0) / (n - ddof)) if n - ddof > 0 else math.nan
+        return self._result(m, s, ddof, n, lo, hi)
+
+    def _result(self, m, s, ddof, n, lo, hi):
         if math.isinf(s):
             raise FitError("the values are too far apart to measure their spread in floating point")
         warnings = []
         if not s > 0:
-            if x.size - ddof <= 0:
+            if n - ddof <= 0:
                 warnings.append("too few values to measure a spread, so every value becomes 0")
             else:
                 warnings.append("all values are the same, so every value becomes 0")
@@ -298,9 +313,16 @@ class Robust(LinearMethod):
     inverse_formula = "x = y * scale + median   (scale = q3 - q1)"
     slow_fit = True  # quartiles sort the values
 
+    summary_needs = frozenset({"quartiles"})
+
     def fit(self, x, options):
         q1, median, q3 = numerics.quantiles(x, (0.25, 0.5, 0.75))
-        lo, hi = finite_range(x)
+        return self._result(q1, median, q3, *finite_range(x))
+
+    def fit_summary(self, summary, options):
+        return self._result(*summary.quartiles, summary.min, summary.max)
+
+    def _result(self, q1, median, q3, lo, hi):
         scale = robust_scale(q1, median, q3, lo, hi)
         warnings = []
         if not q3 - q1 > 0:
@@ -524,13 +546,25 @@ class _PowerMethod(Method):
     )
     slow_fit = True  # a search for lambda
 
+    summary_needs = frozenset({"lambda"})
+
     def _standardize(
-        self, transformed: np.ndarray, options: dict, params: dict, warnings: list
+        self,
+        transformed: np.ndarray | None,
+        options: dict,
+        params: dict,
+        warnings: list,
+        moments: tuple[float, float] | None = None,
     ) -> None:
+        """Add mean and sd of the transformed values (or ``moments``, their mean and sd
+        computed elsewhere) when standardizing."""
         params["standardize"] = bool(options["standardize"])
         if options["standardize"]:
-            m = numerics.mean(transformed)
-            s = numerics.sd(transformed, ddof=1, center=m)
+            if moments is not None:
+                m, s = moments
+            else:
+                m = numerics.mean(transformed)
+                s = numerics.sd(transformed, ddof=1, center=m)
             if not s > 0:
                 warnings.append("the transformed values have no spread; dividing by 1 instead")
                 s = 1.0
@@ -561,6 +595,54 @@ class _PowerMethod(Method):
                 )
             )
             warnings.append(f"lambda {params['lambda']:.4g} is extreme for these values: {lost}")
+
+    def fit_summary(self, summary, options):
+        x = np.array([summary.min, summary.max])
+        self._check_values(x)
+        params: dict[str, Any] = {"lambda": summary.lam}
+        warnings = self._lambda_warnings(summary.lam, summary.lam_constrained)
+        moments = None
+        if options["standardize"]:
+            n = summary.n
+            sd = math.sqrt(max(summary.t_sq_dev, 0.0) / (n - 1)) if n > 1 else math.nan
+            moments = (summary.t_mean, sd)
+        self._standardize(None, options, params, warnings, moments)
+        self._check_reversible(x, params, warnings)  # checked on the extremes
+        return FitResult(params, warnings)
+
+    # The lambda search where the values are not at hand (see platform.power_search): the
+    # profile log-likelihood is ``coef(lambda) * sum(linear) - n/2 * log(var(value))``, with
+    # ``base`` the per-row quantity the search works on (centred by its mean when
+    # ``search_centred``), and ``value`` the transform at a candidate lambda (an SQL
+    # expression, one per candidate), so that one pass evaluates many candidates.
+    search_centred = False
+
+    def sql_search_base(self, x):
+        return x
+
+    def sql_search_linear(self, base):
+        raise NotImplementedError
+
+    def sql_search_value(self, base, lam):
+        raise NotImplementedError
+
+    def llf_coef(self, lam: float) -> float:
+        raise NotImplementedError
+
+    def lambda_bounds(self, lo: float, hi: float) -> tuple[float, float] | None:
+        """The bounds the in-memory fit keeps lambda in (None: Brent from (-2, 2), free)."""
+        return None
+
+    def finish_lambda(self, lam: float, lo: float, hi: float) -> tuple[float, bool]:
+        """The lambda the in-memory fit would end with, and whether it was constrained."""
+        return lam, False
+
+    def _check_values(self, x: np.ndarray) -> None:
+        if np.min(x) == np.max(x):
+            raise FitError(f"all values are the same, so {self.name} cannot be fitted")
+
+    def _lambda_warnings(self, lam: float, constrained: bool) -> list[str]:
+        return []
 
     def _scale(self, t: np.ndarray, params) -> np.ndarray:
         if params.get("standardize"):
@@ -606,22 +688,53 @@ class BoxCox(_PowerMethod):
     when_to_use = "For strictly positive, skewed columns (for other signs use Yeo-Johnson)."
     inverse_formula = "x = (lambda * y' + 1)^(1/lambda), or exp(y') if lambda = 0; y' = y * sd + mean if standardized"
 
-    def fit(self, x, options):
+    def _check_values(self, x):
         if np.any(x <= 0):
             raise FitError(
                 "Box-Cox needs values above 0, and this column has values of 0 or below; "
                 "choose Yeo-Johnson, which accepts any sign"
             )
-        if np.min(x) == np.max(x):
-            raise FitError("all values are the same, so Box-Cox cannot be fitted")
+        super()._check_values(x)
+
+    search_centred = True  # the centred logarithms, as BoxCoxLikelihood works on
+
+    def sql_search_base(self, x):
+        from . import sql_terms as S
+
+        return S.case((S.gt(x, S.num(0.0)), S.ln(x.copy())))
+
+    def sql_search_linear(self, base):
+        return base
+
+    def sql_search_value(self, base, lam):
+        from . import sql_terms as S
+
+        # lambda * sum(L - c) - n/2 * log(var(expm1(lambda * (L - c)) / lambda)), as in
+        # power.BoxCoxLikelihood (the constant -sum(L) left out).
+        return S.case(
+            (S.eq(lam, S.num(0.0)), base),
+            default=S.div(S.expm1(S.mul(lam.copy(), base.copy())), lam.copy()),
+        )
+
+    def llf_coef(self, lam):
+        return lam
+
+    def finish_lambda(self, lam, lo, hi):
+        return power.constrain_boxcox_lambda(lam, lo, hi)
+
+    def _lambda_warnings(self, lam, constrained):
+        if not constrained:
+            return []
+        return [
+            f"the best lambda would push values beyond what floating point can hold; "
+            f"lambda {lam!r} was used instead (as scipy does)"
+        ]
+
+    def fit(self, x, options):
+        self._check_values(x)
         lam, constrained = power.boxcox_lambda(x, report_constrained=True)
         params: dict[str, Any] = {"lambda": lam}
-        warnings: list[str] = []
-        if constrained:
-            warnings.append(
-                f"the best lambda would push values beyond what floating point can hold; "
-                f"lambda {lam!r} was used instead (as scipy does)"
-            )
+        warnings = self._lambda_warnings(lam, constrained)
         self._standardize(power.boxcox_forward(x, lam), options, params, warnings)
         self._check_reversible(x, params, warnings)
         return FitResult(params, warnings)
@@ -670,9 +783,37 @@ class YeoJohnson(_PowerMethod):
         "y' = y * sd + mean if standardized"
     )
 
+    def sql_search_linear(self, base):
+        from . import sql_terms as S
+
+        return S.case(
+            (S.ge(base, S.num(0.0)), S.log1p(base.copy())),
+            default=S.neg(S.log1p(S.neg(base.copy()))),
+        )
+
+    def sql_search_value(self, base, lam):
+        from . import sql_terms as S
+
+        pos = S.case(
+            (S.eq(lam, S.num(0.0)), S.log1p(base)),
+            default=S.div(S.expm1(S.mul(lam.copy(), S.log1p(base.copy()))), lam.copy()),
+        )
+        two_less = S.sub(S.num(2.0), lam.copy())
+        neg_log = S.log1p(S.neg(base.copy()))
+        neg = S.case(
+            (S.eq(lam.copy(), S.num(2.0)), S.neg(neg_log)),
+            default=S.neg(S.div(S.expm1(S.mul(two_less, neg_log.copy())), two_less.copy())),
+        )
+        return S.case((S.ge(base.copy(), S.num(0.0)), pos), default=neg)
+
+    def llf_coef(self, lam):
+        return lam - 1.0
+
+    def lambda_bounds(self, lo, hi):
+        return power.yeojohnson_bounds(lo, hi)
+
     def fit(self, x, options):
-        if np.min(x) == np.max(x):
-            raise FitError("all values are the same, so Yeo-Johnson cannot be fitted")
+        self._check_values(x)
         lam = power.yeojohnson_lambda(x)
         params: dict[str, Any] = {"lambda": lam}
         warnings: list[str] = []
