@@ -783,26 +783,30 @@ class YeoJohnson(_PowerMethod):
         "y' = y * sd + mean if standardized"
     )
 
-    def sql_search_linear(self, base):
+    def sql_search_base(self, x):
+        """The signed logarithm: log1p(x) for x >= 0, -log1p(-x) below (as the in-memory
+        YeoJohnsonLikelihood keeps them), so the candidates' transforms name one column."""
         from . import sql_terms as S
 
         return S.case(
-            (S.ge(base, S.num(0.0)), S.log1p(base.copy())),
-            default=S.neg(S.log1p(S.neg(base.copy()))),
+            (S.ge(x, S.num(0.0)), S.log1p(x.copy())),
+            default=S.neg(S.log1p(S.neg(x.copy()))),
         )
+
+    def sql_search_linear(self, base):
+        return base
 
     def sql_search_value(self, base, lam):
         from . import sql_terms as S
 
         pos = S.case(
-            (S.eq(lam, S.num(0.0)), S.log1p(base)),
-            default=S.div(S.expm1(S.mul(lam.copy(), S.log1p(base.copy()))), lam.copy()),
+            (S.eq(lam, S.num(0.0)), base),
+            default=S.div(S.expm1(S.mul(lam.copy(), base.copy())), lam.copy()),
         )
         two_less = S.sub(S.num(2.0), lam.copy())
-        neg_log = S.log1p(S.neg(base.copy()))
         neg = S.case(
-            (S.eq(lam.copy(), S.num(2.0)), S.neg(neg_log)),
-            default=S.neg(S.div(S.expm1(S.mul(two_less, neg_log.copy())), two_less.copy())),
+            (S.eq(lam.copy(), S.num(2.0)), base.copy()),
+            default=S.neg(S.div(S.expm1(S.mul(two_less, S.neg(base.copy()))), two_less.copy())),
         )
         return S.case((S.ge(base.copy(), S.num(0.0)), pos), default=neg)
 

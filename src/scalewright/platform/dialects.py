@@ -14,6 +14,8 @@ from sqlglot import exp
 
 from ..engine.sql_terms import add, case, div, eq, exp_, ln, mul, num, sub
 
+#: Dialects with no SINH function.
+_NO_SINH = {"tsql"}
 #: Dialects with EXPM1 and LOG1P of their own.
 _NATIVE_EXPM1_LOG1P = {"spark", "databricks", "hive"}
 
@@ -25,6 +27,16 @@ def _kahan_expm1(x: exp.Expression) -> exp.Expression:
         (eq(u, exp.Literal.number(1)), x.copy()),
         (eq(u.copy(), exp.Literal.number(0)), num(-1.0)),
         default=div(mul(sub(u.copy(), exp.Literal.number(1)), x.copy()), ln(u.copy())),
+    )
+
+
+def _sinh_expm1(x: exp.Expression) -> exp.Expression:
+    """2 * sinh(x / 2) * exp(x / 2): sinh keeps full precision for tiny x, and no CASE
+    is needed but the one for x so negative that sinh overflows (the result is -1)."""
+    half = div(x, num(2.0))
+    return case(
+        (exp.LT(this=x.copy(), expression=num(-1000.0)), num(-1.0)),
+        default=mul(mul(num(2.0), exp.Sinh(this=half)), exp_(half.copy())),
     )
 
 
@@ -47,5 +59,6 @@ def for_dialect(tree: exp.Expression, dialect: str) -> exp.Expression:
             return _WRITTEN_OUT[node.name.upper()](node.expressions[0].copy().transform(lower))
         return node
 
-    _WRITTEN_OUT = {"EXPM1": _kahan_expm1, "LOG1P": _kahan_log1p}
+    expm1 = _kahan_expm1 if dialect in _NO_SINH else _sinh_expm1
+    _WRITTEN_OUT = {"EXPM1": expm1, "LOG1P": _kahan_log1p}
     return tree.copy().transform(lower)
