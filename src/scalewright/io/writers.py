@@ -1,4 +1,4 @@
-"""Write tables to CSV, TSV and XLSX, and the scaled workbook with its embedded project.
+"""Write tables to CSV, TSV, XLSX and Parquet, and the scaled workbook with its embedded project.
 
 Every writer puts ``headers`` (the file's own header text) in the first row, writes to a
 temporary file beside the target and renames it into place (see ``atomic``).
@@ -27,6 +27,7 @@ from xlsxwriter.worksheet import Worksheet
 
 from ..errors import Cancelled, ReadError, WriteError
 from .atomic import atomic_path
+from .parquet import write_parquet
 from .options import SUPPORTED_WRITE, WORKBOOK_SUFFIXES, CancelCheck, Progress
 
 CHUNK_ROWS = 20_000
@@ -93,6 +94,11 @@ def write_table(
         _write_delimited(
             path, data, headers, "," if suffix == ".csv" else "\t", progress, cancelled
         )
+        return
+    if suffix == ".parquet":
+        write_parquet(path, data, headers, _arrow_ready)
+        if progress is not None:
+            progress(1.0)
         return
     with atomic_path(path) as tmp:
         book = _new_workbook(tmp)

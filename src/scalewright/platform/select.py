@@ -96,36 +96,62 @@ def build_select(
     clip: bool = False,
     table: str | None = None,
 ) -> exp.Select:
-    """The SELECT as a sqlglot tree (write it out with ``.sql(dialect=...)``).
-
-    An inner SELECT computes each fitted column's mapped values once (under a helper name
-    that cannot clash with a source column); the outer one checks them and lists every
-    source column under its own name, in order.
-    """
+    """The SELECT as a sqlglot tree (write it out with ``.sql(dialect=...)``), for a table
+    with the source's columns: every fitted column mapped, the others passed through."""
     plan = project.plan
     if plan is None:
         raise ProjectError("project", "has no fitted parameters yet; fit it first")
     labels = list(project.columns) or list(plan.columns)
     names = platform_names(labels, list(project.headers))
     group_by = plan.settings.group_by
-    group = S.column(names.get(group_by, group_by)) if group_by else None
-    helper = _helper_names(names.values())
-    inner = [S.column(names[label]) for label in labels]
-    outer = []
-    for label in labels:
-        name = names[label]
-        x = S.column(name)
-        fc = plan.columns.get(label)
-        if fc is None or get_method(fc.method).id == "none":
-            outer.append(x)
-            continue
-        body = mapped_body(fc, x, restoring=restoring, clip=clip, group=group)
-        mapped = next(helper)
-        inner.append(exp.alias_(S.case((S.is_finite(x.copy()), body)), mapped, quoted=True))
-        outer.append(exp.alias_(finished(x.copy(), S.column(mapped)), name, quoted=True))
     source = table or default_table_name(project)
     source_table = exp.to_table(source) if "." in source else _quoted_table(source)
-    staged = exp.select(*inner).from_(source_table).subquery("scaled_values")
+    pairs = {names[label]: plan.columns[label] for label in labels if label in plan.columns}
+    return select_columns(
+        [names[label] for label in labels],
+        pairs,
+        source_table,
+        restoring=restoring,
+        clip=clip,
+        group=names.get(group_by, group_by) if group_by else None,
+    )
+
+
+def select_columns(
+    columns: list[str],
+    pairs: dict[str, FittedColumn],
+    source: exp.Expression,
+    *,
+    restoring: bool = False,
+    clip: bool = False,
+    group: str | None = None,
+    renamed: dict[str, str] | None = None,
+) -> exp.Select:
+    """SELECT every column of ``columns`` (names in the table ``source``), in order; those
+    in ``pairs`` mapped with their fitted column's parameters. ``renamed`` gives a column
+    another name in the output.
+
+    An inner SELECT computes each mapped column's values once (under a helper name that
+    cannot clash with a source column); the outer one checks them and lists every column
+    under its own name.
+    """
+    renamed = renamed or {}
+    group_col = S.column(group) if group else None
+    helper = _helper_names(columns)
+    inner: list[exp.Expression] = [S.column(name) for name in columns]
+    outer: list[exp.Expression] = []
+    for name in columns:
+        x = S.column(name)
+        out_name = renamed.get(name, name)
+        fc = pairs.get(name)
+        if fc is None or get_method(fc.method).id == "none":
+            outer.append(exp.alias_(x, out_name, quoted=True) if out_name != name else x)
+            continue
+        body = mapped_body(fc, x, restoring=restoring, clip=clip, group=group_col)
+        mapped = next(helper)
+        inner.append(exp.alias_(S.case((S.is_finite(x.copy()), body)), mapped, quoted=True))
+        outer.append(exp.alias_(finished(x.copy(), S.column(mapped)), out_name, quoted=True))
+    staged = exp.select(*inner).from_(source).subquery("scaled_values")
     return exp.select(*outer).from_(staged)
 
 
