@@ -27,8 +27,8 @@ from xlsxwriter.worksheet import Worksheet
 
 from ..errors import Cancelled, ReadError, WriteError
 from .atomic import atomic_path
-from .parquet import write_parquet
 from .options import SUPPORTED_WRITE, WORKBOOK_SUFFIXES, CancelCheck, Progress
+from .parquet import write_parquet
 
 CHUNK_ROWS = 20_000
 PROGRESS_ROWS = 5_000
