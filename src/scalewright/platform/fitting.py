@@ -10,7 +10,7 @@ The lambda search (docs/decisions.md, "Fitting where the data lives"): each roun
 evaluates the profile log-likelihood at 33 candidate lambdas in one pass (one variance
 per candidate). The grid starts at -2..2 in steps of 0.125 (the bracket scipy's Brent
 starts from), slides while the best candidate is at an edge, and otherwise narrows around
-the best candidate by 16 each round; once the step is at most 5e-5, a parabola through the
+the best candidate by 16 each round; once the step is at most 2e-6, a parabola through the
 best candidate and its neighbours gives lambda (its error is of the order of the step
 squared). Yeo-Johnson's candidates stay within the bounds the in-memory fit uses.
 """
@@ -32,7 +32,7 @@ from .names import platform_names
 
 #: Narrowing per round, and the step below which a parabola gives the final lambda.
 NARROW = 16.0
-FINE_STEP = 5e-5
+FINE_STEP = 2e-6
 #: When the best candidate sits at a bound, narrow until the step is this small.
 TINY_STEP = 1e-8
 
