@@ -13,8 +13,8 @@ import numpy as np
 import pandas as pd
 import pytest
 import sqlglot
+from platform_support import duckdb_table, numeric_frame, spark_table
 
-from conftest import duckdb_table, numeric_frame, spark_table
 from scalewright.engine import ColumnChoice, FitSettings, apply, get_method, restore
 from scalewright.io import read_table
 from scalewright.platform.names import DIALECTS

@@ -116,7 +116,8 @@ class ValueSummary:
     min: float
     max: float
     mean: float | None = None  # "moments": two-pass mean ...
-    sq_dev: float | None = None  # ... and sum of squared deviations from it
+    sq_dev: float | None = None  # ... and sum of squared deviations, in units of dev_scale
+    dev_scale: float = 1.0
     quartiles: tuple[float, float, float] | None = None  # "quartiles": q1, median, q3 (type 7)
     lam: float | None = None  # "lambda": the power methods' maximum-likelihood lambda
     lam_constrained: bool = False

@@ -198,7 +198,8 @@ class ZScore(LinearMethod):
             m, s = lo, 0.0
         else:
             m = summary.mean
-            s = math.sqrt(max(summary.sq_dev, 0.0) / (n - ddof)) if n - ddof > 0 else math.nan
+            spread = math.sqrt(max(summary.sq_dev, 0.0) / (n - ddof)) if n - ddof > 0 else math.nan
+            s = summary.dev_scale * spread
         return self._result(m, s, ddof, n, lo, hi)
 
     def _result(self, m, s, ddof, n, lo, hi):

@@ -5,6 +5,7 @@ from __future__ import annotations
 from sqlglot import exp
 
 from ..engine import FitSettings, FittedPlan
+from ..errors import ColumnError
 from .dialects import for_dialect
 from .fit_query import build_fit_query
 from .fitting import PlatformFit
@@ -25,7 +26,14 @@ def fit_in_duckdb(con, spec, source: exp.Expression, settings: FitSettings) -> F
     plan = state.first_round()
     while plan is not None:
         if state.rounds >= MAX_ROUNDS:
-            raise RuntimeError("the lambda search did not settle")
+            labels = sorted(
+                {c.label for c in spec.columns for (i, _) in state.searches if i == c.index}
+            )
+            raise ColumnError(
+                labels[0] if labels else "",
+                f"the likelihood of lambda has no maximum within reach after {MAX_ROUNDS} "
+                "passes (the values are nearly all the same); choose another method",
+            )
         sql = for_dialect(build_fit_query(spec, source, plan), "duckdb").sql(dialect="duckdb")
         state.absorb(fetch_rows(con, sql))
         plan = state.next_round()

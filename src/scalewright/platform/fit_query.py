@@ -6,7 +6,8 @@ among the fitted columns) it holds what the method's ``fit_summary`` needs:
 
 - always: ``c<i>_n`` (finite values), ``_missing``, ``_infinite``, ``_min``, ``_max``;
 - "moments": ``_mean1`` (first-pass mean), ``_devsum`` and ``_devsq`` (sums of the
-  deviations from it and of their squares; the second pass of a two-pass algorithm);
+  deviations from it and of their squares, in units of ``_devscale``, the range; the
+  second pass of a two-pass algorithm);
 - "quartiles": ``_q1a``/``_q1b`` ... ``_q3a``/``_q3b``, the two order statistics each
   type-7 quartile lies between (by ROW_NUMBER, exact in every dialect); the
   interpolation is done afterwards exactly as numpy does it;
@@ -21,6 +22,7 @@ The search itself (which candidates next, when lambda is found) is ``power_searc
 from __future__ import annotations
 
 import math
+import re
 from dataclasses import dataclass, field
 
 from sqlglot import exp
@@ -128,6 +130,25 @@ def _lam_expr(index: int, k: int, plan: RoundPlan) -> exp.Expression:
     return S.add(centre, S.mul(S.num(float(k)), step))
 
 
+def _whole(key: str) -> bool:
+    """A whole-number key (``3``), which a double column reads as ``3.0``."""
+    return re.fullmatch(r"-?\d+", key) is not None
+
+
+def _state_match() -> exp.Expression:
+    """A row's part has this state row: the same key, or for a whole-number key the same
+    key as a double column reads it as text (``3.0`` for ``3``)."""
+    same = exp.EQ(this=_col(GROUP, "v"), expression=_col(GROUP, "s"))
+    as_double = exp.and_(
+        exp.EQ(this=_col("whole", "s"), expression=exp.Literal.string("yes")),
+        exp.EQ(
+            this=_col(GROUP, "v"),
+            expression=exp.DPipe(this=_col(GROUP, "s"), expression=exp.Literal.string(".0")),
+        ),
+    )
+    return exp.or_(same, as_double)
+
+
 def _state_rows(spec: FitSpec, plan: RoundPlan, keys: list[str]) -> exp.Expression:
     """A small table of the searches' centres and steps and the lambdas found, per part."""
     indexes = [c.index for c in spec.columns]
@@ -140,7 +161,8 @@ def _state_rows(spec: FitSpec, plan: RoundPlan, keys: list[str]) -> exp.Expressi
                     exp.DataType.build("varchar"),
                 ),
                 GROUP,
-            )
+            ),
+            _alias(exp.Literal.string("yes" if key is not None and _whole(key) else "no"), "whole"),
         ]
         for i in indexes:
             search = plan.searches.get((i, key)) if key is not None else None
@@ -227,7 +249,7 @@ def _part(spec: FitSpec, plan: RoundPlan, source: exp.Expression, grouped: bool,
             .from_(exp.to_table(base).as_("v", quoted=True))
             .join(
                 exp.to_table(state).as_("s", quoted=True),
-                on=exp.EQ(this=_col(GROUP, "v"), expression=_col(GROUP, "s")),
+                on=_state_match(),
                 join_type="left",
             )
         )
@@ -268,7 +290,7 @@ def _part(spec: FitSpec, plan: RoundPlan, source: exp.Expression, grouped: bool,
         )
         .join(
             exp.to_table(state).as_("s", quoted=True),
-            on=exp.EQ(this=_col(GROUP, "v"), expression=_col(GROUP, "s")),
+            on=_state_match(),
             join_type="left",
         )
     )
@@ -276,11 +298,21 @@ def _part(spec: FitSpec, plan: RoundPlan, source: exp.Expression, grouped: bool,
     for c in cols:
         i = c.index
         if "moments" in c.method.summary_needs and plan.basic:
+            # Deviations in units of the range, so that their squares neither underflow
+            # (values near 1e-300) nor overflow (near 1e300); the range is given back.
+            lo, hi = _col(name(i, "min"), "m"), _col(name(i, "max"), "m")
+            span = S.case((S.gt(hi, lo), S.sub(hi.copy(), lo.copy())), default=S.num(1.0))
             prepared = _add(
-                prepared, _alias(S.sub(_col(f"f{i}", "v"), _col(name(i, "mean1"), "m")), f"d{i}")
+                prepared,
+                _alias(
+                    S.div(S.sub(_col(f"f{i}", "v"), _col(name(i, "mean1"), "m")), span),
+                    f"d{i}",
+                ),
+                _alias(span.copy(), f"span{i}"),
             )
             second = _add(
                 second,
+                _alias(exp.Max(this=_col(f"span{i}")), name(i, "devscale")),
                 _alias(exp.Sum(this=_col(f"d{i}")), name(i, "devsum")),
                 _alias(exp.Sum(this=_square(_col(f"d{i}"))), name(i, "devsq")),
             )

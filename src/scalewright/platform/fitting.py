@@ -9,10 +9,9 @@ builds the same ``FittedPlan`` the in-memory fit would, through each method's
 The lambda search (docs/decisions.md, "Fitting where the data lives"): each round
 evaluates the profile log-likelihood at 33 candidate lambdas in one pass (one variance
 per candidate). The grid starts at -2..2 in steps of 0.125 (the bracket scipy's Brent
-starts from), slides while the best candidate is at an edge, and otherwise narrows around
-the best candidate by 16 each round; once the step is at most 2e-6, a parabola through the
-best candidate and its neighbours gives lambda (its error is of the order of the step
-squared). Yeo-Johnson's candidates stay within the bounds the in-memory fit uses.
+starts from), slides (with a step four times wider each time) while the best candidate is at an edge, and otherwise narrows around
+the best candidate by 16 each round; once the step is at most 4e-5, a cubic fitted to that round's candidates gives
+lambda (averaging out the rounding of each evaluation where the likelihood is flat). Yeo-Johnson's candidates stay within the bounds the in-memory fit uses.
 """
 
 from __future__ import annotations
@@ -32,7 +31,9 @@ from .names import platform_names
 
 #: Narrowing per round, and the step below which a parabola gives the final lambda.
 NARROW = 16.0
-FINE_STEP = 2e-6
+FINE_STEP = 4e-5
+#: Growth of the step while the grid slides towards a maximum beyond its edge.
+GROW = 4.0
 #: When the best candidate sits at a bound, narrow until the step is this small.
 TINY_STEP = 1e-8
 
@@ -120,6 +121,9 @@ class PlatformFit:
         return RoundPlan(
             default_search={c.index: Search(0.0, 2.0 / HALF) for c in self._power_columns()}
         )
+
+    def _column(self, index: int) -> FitColumn:
+        return self.spec.columns[index - 1]
 
     def _power_columns(self) -> list[FitColumn]:
         return [c for c in self.spec.columns if "lambda" in c.method.summary_needs]
@@ -212,13 +216,19 @@ class PlatformFit:
         """What the next query must compute, or None when every parameter is known."""
         lambdas = {}
         for c in self._power_columns():
-            if not c.options.get("standardize"):
-                continue
             for key in self.parts:
                 ident = (c.index, key)
-                if ident in self.lambdas and ident not in self.moments:
+                if ident not in self.lambdas:
+                    continue
+                if c.options.get("standardize") and ident not in self.moments:
                     lambdas[ident] = self.lambdas[ident][0]
-        if not self.searches and not lambdas:
+                elif basic:
+                    # A result read from a file must hold everything found so far.
+                    lambdas[ident] = self.lambdas[ident][0]
+        if not self.searches and not any(
+            ident not in self.moments and self._column(ident[0]).options.get("standardize")
+            for ident in lambdas
+        ):
             return None
         return RoundPlan(searches=dict(self.searches), lambdas=lambdas, basic=basic)
 
@@ -234,8 +244,10 @@ class PlatformFit:
             for stat in ("mean1", "devsum", "devsq"):
                 if stats.get(stat) is None:
                     raise ResultError(f"the result has no {name(c.index, stat)} for '{c.label}'")
-            kw["mean"] = stats["mean1"] + stats["devsum"] / n
+            scale = stats.get("devscale") or 1.0
+            kw["mean"] = stats["mean1"] + scale * (stats["devsum"] / n)
             kw["sq_dev"] = stats["devsq"] - stats["devsum"] ** 2 / n
+            kw["dev_scale"] = scale
         if "quartiles" in needs and n:
             pairs = []
             for j in (1, 2, 3):
@@ -336,18 +348,43 @@ def step_search(method, search: Search, variances, linear: float, n: float, boun
     if at_edge:
         beyond = lam + (search.step if best else -search.step)
         if bounds is None or bounds[0] <= beyond <= bounds[1]:
-            return Search(lam, search.step)  # the maximum lies further out: slide
+            # The maximum lies further out: slide, with ever wider steps (as a bracket
+            # search grows its steps), so that far-off maxima are reached in a few rounds.
+            return Search(lam, search.step * GROW)
         bound_limited = True
     if bound_limited:
         if search.step <= TINY_STEP:
             return lam
         return Search(lam, search.step / NARROW)
     if search.step <= FINE_STEP:
-        curvature = left - 2 * llf[best] + right
-        if curvature < 0:
-            shift = 0.5 * search.step * (left - right) / curvature
-            lam = lam + max(-search.step, min(search.step, shift))
+        lam = _polished(lams, llf, best, search.step)
         if bounds is not None:
             lam = min(max(lam, bounds[0]), bounds[1])
         return lam
     return Search(lam, search.step / NARROW)
+
+
+def _polished(lams: list[float], llf: list[float], best: int, step: float) -> float:
+    """The maximum of a cubic fitted by least squares to the last round's candidates.
+
+    Near its maximum a likelihood can be so flat that the rounding of each evaluation
+    matters; a fit through all 33 candidates averages that out, and its cubic term keeps
+    the curve's asymmetry from moving the maximum.
+    """
+    import numpy as np
+
+    k = np.arange(len(lams), dtype=float) - best
+    y = np.asarray(llf, dtype=float)
+    ok = np.isfinite(y)
+    if ok.sum() < 5:
+        return lams[best]
+    c3, c2, c1, _ = np.polyfit(k[ok], y[ok] - y[best], 3)
+    roots = np.roots([3 * c3, 2 * c2, c1]) if c3 != 0 else np.array([-c1 / (2 * c2)])
+    found = [
+        float(r.real)
+        for r in np.atleast_1d(roots)
+        if abs(r.imag) < 1e-12 and 6 * c3 * r.real + 2 * c2 < 0 and abs(r.real) <= 1.0
+    ]
+    if not found:
+        return lams[best]
+    return lams[best] + min(found, key=abs) * step
