@@ -484,8 +484,6 @@ def restore_source(con, source: DuckSource, plan: FittedPlan, pairs: dict[str, s
     )
     for r in reports:
         r.column = _label_of(source, r.column)
-        r.unseen_groups = []
-        r.warnings = [w for w in r.warnings if not w.startswith("groups not seen")]
     write_select(con, source, select, target)
     return reports
 
