@@ -9,6 +9,7 @@ from __future__ import annotations
 
 import os
 from collections.abc import Mapping
+from concurrent.futures import ThreadPoolExecutor
 from pathlib import Path
 
 import pandas as pd
@@ -87,7 +88,7 @@ def fit_file(
     """Fit on a file through DuckDB; with ``output``, also write the scaled file."""
     from ..cli import build_choices
     from ..tasks import check_choices
-    from .outofcore import apply_source, connection, fit_source, open_source
+    from .outofcore import STAGED, apply_source, connection, fit_source, open_source
 
     if sheet is not None:
         raise OptionError("--sheet is for workbooks; the DuckDB engine reads CSV and Parquet")
@@ -113,8 +114,14 @@ def fit_file(
             )
         check_choices(table, choices)
         normalized = {label: choice.normalized() for label, choice in choices.items()}
-        plan = fit_source(con, source, normalized, settings)
-        size, sha = fingerprint(source.path)
+        # The file's fingerprint is computed beside DuckDB's work (both free the GIL).
+        with ThreadPoolExecutor(max_workers=1) as pool:
+            digest = pool.submit(fingerprint, source.path)
+            plan = fit_source(con, source, normalized, settings, keep=output is not None)
+            reports = []
+            if output is not None:
+                reports = apply_source(con, source, plan, output, counts_from=STAGED)
+            size, sha = digest.result()
         stamp = now_iso()
         project = Project(
             source=Path(os.path.abspath(source.path)),
@@ -130,9 +137,6 @@ def fit_file(
             modified=stamp,
             app_version=__version__,
         )
-        reports = []
-        if output is not None:
-            reports = apply_source(con, source, plan, output)
     return project, reports
 
 

@@ -38,6 +38,7 @@ from .names import platform_names
 from .select import key_condition, mapped_body, select_columns
 
 VIEW = "scalewright_source"
+STAGED = "scalewright_fit"
 #: Rows of the start of a text file read to detect its layout and its number columns.
 DETECT_ROWS = 5_000
 #: DuckDB's memory limit: with the interpreter and the libraries this keeps a run well
@@ -142,7 +143,14 @@ def _number_expr(raw: str, opts: ReadOptions) -> str:
         text = f"replace({text}, '{_sql_text(opts.thousands)}', '')"
     if (opts.decimal or ".") == ",":
         text = f"replace({text}, ',', '.')"
-    return f"CASE WHEN lower(trim({raw})) IN ({words}) OR {raw} IS NULL THEN NULL ELSE CAST({text} AS DOUBLE) END"
+    slow = f"CASE WHEN lower(trim({raw})) IN ({words}) THEN NULL ELSE CAST({text} AS DOUBLE) END"
+    if opts.thousands or (opts.decimal or ".") == ",":
+        return f"CASE WHEN {raw} IS NULL THEN NULL ELSE {slow} END"
+    # Most cells are plain numbers: DuckDB's own conversion first, the words only when it
+    # fails (COALESCE evaluates its second argument only for those cells). 'NaN' reads as
+    # a missing value, as in memory.
+    fast = f"NULLIF(TRY_CAST({raw} AS DOUBLE), CAST('nan' AS DOUBLE))"
+    return f"CASE WHEN {raw} IS NULL THEN NULL ELSE COALESCE({fast}, {slow}) END"
 
 
 def _open_parquet(con, path: Path, options: ReadOptions) -> DuckSource:
@@ -227,8 +235,11 @@ def _first_line(err: Exception) -> str:
 # --------------------------------------------------------------------------- fit
 
 
-def fit_source(con, source: DuckSource, choices: dict, settings: FitSettings) -> FittedPlan:
-    """Fit the (normalized) choices on the opened file."""
+def fit_source(
+    con, source: DuckSource, choices: dict, settings: FitSettings, *, keep: bool = False
+) -> FittedPlan:
+    """Fit the (normalized) choices on the opened file. With ``keep``, the table of the
+    columns read (``STAGED``, every row) is left for the apply that follows."""
     columns = []
     for label, choice in choices.items():
         if choice.method == "none":
@@ -255,13 +266,14 @@ def fit_source(con, source: DuckSource, choices: dict, settings: FitSettings) ->
     _run(
         con,
         source,
-        f"CREATE OR REPLACE TABLE scalewright_fit AS SELECT {', '.join(_q(n) for n in wanted)} FROM {VIEW}",
+        f"CREATE OR REPLACE TABLE {STAGED} AS SELECT {', '.join(_q(n) for n in wanted)} FROM {VIEW}",
         fetch=False,
     )
     try:
-        return fit_in_duckdb(con, spec, exp.to_table("scalewright_fit"), settings)
+        return fit_in_duckdb(con, spec, exp.to_table(STAGED), settings)
     finally:
-        con.execute("DROP TABLE IF EXISTS scalewright_fit")
+        if not keep:
+            con.execute(f"DROP TABLE IF EXISTS {STAGED}")
 
 
 def _typed_key(source: DuckSource, column: str, value: str) -> str:
@@ -305,8 +317,10 @@ def count_reports(
     *,
     restoring: bool,
     clip: bool,
+    table: str = VIEW,
 ) -> list[ColumnReport]:
-    """The per-column counts the in-memory apply and restore report, in one pass."""
+    """The per-column counts the in-memory apply and restore report, in one pass over
+    ``table`` (the file's view, or a table holding its number columns already)."""
     items = []
     mapped = []
     for j, (name, (_, fc)) in enumerate(pairs.items()):
@@ -363,7 +377,7 @@ def count_reports(
         items.append(keys_sql)
     inner = exp.select(
         *[S.column(n) for n in dict.fromkeys([*pairs, *([group] if group else [])])], *mapped
-    ).from_(VIEW)
+    ).from_(table)
     query = exp.select(*items).from_(inner.subquery("mapped"))
     row = _run(con, source, for_dialect(query, "duckdb").sql(dialect="duckdb"))[0]
     reports = []
@@ -432,8 +446,19 @@ def _warn(report: ColumnReport, fc, restoring: bool, clip: bool) -> None:
         )
 
 
-def apply_source(con, source: DuckSource, plan: FittedPlan, target: Path, *, clip: bool = False):
-    """Scale the opened file with ``plan`` and write ``target``; the reports."""
+def apply_source(
+    con,
+    source: DuckSource,
+    plan: FittedPlan,
+    target: Path,
+    *,
+    clip: bool = False,
+    counts_from: str = VIEW,
+):
+    """Scale the opened file with ``plan`` and write ``target``; the reports.
+
+    ``counts_from`` may name a table that already holds the file's fitted columns (and the
+    grouping column), so that counting does not read the file again."""
     for label in plan.columns:
         if label not in source.names:
             raise ColumnError(label, f"was fitted in the project but is not in {source.path.name}")
@@ -455,6 +480,7 @@ def apply_source(con, source: DuckSource, plan: FittedPlan, target: Path, *, cli
         group,
         restoring=False,
         clip=clip,
+        table=counts_from,
     )
     for r in reports:
         r.column = _label_of(source, r.column)
