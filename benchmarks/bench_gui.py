@@ -74,7 +74,7 @@ def main(n: int = 1_000_000) -> None:
     from scalewright.gui import commands
     from scalewright.gui.app import make_app
     from scalewright.gui.main_window import MainWindow
-    from scalewright.gui.state import column_facts
+    from scalewright.session import column_facts
 
     app = make_app()
     settings = QSettings(str(Path("/tmp") / "scalewright_bench.ini"), QSettings.Format.IniFormat)

@@ -1,9 +1,9 @@
 """The layers below the window never need Qt (../shared/DESIGN.md, "Layers").
 
-``import scalewright.engine`` and ``import scalewright.io`` must work on a machine with no
-display and without PySide6: checked in a fresh interpreter where importing PySide6,
-shiboken6 or pyqtgraph raises ImportError, and by reading every import statement of the
-two packages' source.
+``engine``, ``io``, ``project``, ``projects``, ``tasks``, ``cli`` and the window's Qt-free
+state (``session``) must import on a machine with no display and without PySide6: checked
+in a fresh interpreter where importing PySide6, shiboken6 or pyqtgraph raises ImportError,
+and by reading every import statement of their source.
 """
 
 from __future__ import annotations
@@ -17,6 +17,11 @@ from pathlib import Path
 import pytest
 
 SRC = Path(__file__).resolve().parents[1] / "src" / "scalewright"
+# Packages and modules below the window (paths relative to SRC).
+QT_FREE = ["engine", "io", "session", "project", "projects.py", "tasks.py", "cli.py"]
+# The report's HTML face (its PDF face, report/pdf.py, imports Qt when a PDF is asked for).
+QT_FREE += ["report/__init__.py", "report/content.py", "report/formulas.py", "report/html.py"]
+QT_FREE += ["report/svg.py"]
 QT_NAMES = ("PySide6", "shiboken6", "pyqtgraph", "PyQt5", "PyQt6", "PySide2", "qtpy")
 
 BLOCKER = textwrap.dedent(
@@ -54,7 +59,11 @@ def test_blocker_really_blocks():
     assert result.returncode != 0 and "blocked" in result.stderr
 
 
-@pytest.mark.parametrize("module", ["scalewright.engine", "scalewright.io"])
+def _module(part: str) -> str:
+    return "scalewright." + part.removesuffix(".py").removesuffix("/__init__").replace("/", ".")
+
+
+@pytest.mark.parametrize("module", [_module(part) for part in QT_FREE])
 def test_imports_without_qt(module):
     result = run_without_qt(module)
     assert result.returncode == 0, result.stderr
@@ -80,10 +89,15 @@ def imported_names(path: Path) -> list[str]:
     return names
 
 
-@pytest.mark.parametrize("package", ["engine", "io"])
+def _sources(part: str) -> list[Path]:
+    where = SRC / part
+    return [where] if where.suffix == ".py" else sorted(where.rglob("*.py"))
+
+
+@pytest.mark.parametrize("package", QT_FREE)
 def test_no_qt_import_statement_in_source(package):
-    files = sorted((SRC / package).rglob("*.py"))
-    assert files, f"no source found under {SRC / package}"
+    files = [path for path in _sources(package) if path.is_file()]
+    assert files, f"no source found at {SRC / package}"
     offending = [
         f"{path.relative_to(SRC)}: {name}"
         for path in files
@@ -103,3 +117,15 @@ def test_engine_does_not_import_upper_layers():
         for node in ast.walk(tree):
             if isinstance(node, ast.ImportFrom) and node.level >= 2:
                 assert node.module in ("errors",), f"{path.name} imports ..{node.module}"
+
+
+@pytest.mark.parametrize("package", [p for p in QT_FREE if p != "cli.py"])
+def test_qt_free_parts_do_not_import_the_window(package):
+    # the window sits on top of these: none of them may reach back up into gui
+    for path in _sources(package):
+        for name in imported_names(path):
+            assert not name.startswith("scalewright.gui"), f"{path.name} imports {name}"
+        tree = ast.parse(path.read_text(encoding="utf-8"))
+        for node in ast.walk(tree):
+            if isinstance(node, ast.ImportFrom) and node.level >= 1 and node.module:
+                assert not node.module.startswith("gui"), f"{path.name} imports .{node.module}"

@@ -2,7 +2,8 @@
 
 The same calls as the window (``scalewright.tasks``), with no Qt import unless the window
 is asked for. Exit status: 0 success; 1 bad input, with one line ``scalewright: <message>``
-on standard error and no output file left behind; 2 a usage error (argparse).
+on standard error and no output file left behind; 2 a usage error (argparse); 130 or 143
+when stopped by Ctrl-C (SIGINT) or SIGTERM, after removing any unfinished file.
 See ``docs/command-line.md``.
 """
 
@@ -11,13 +12,14 @@ from __future__ import annotations
 import argparse
 import contextlib
 import os
+import signal
 import sys
+import threading
 from collections.abc import Callable, Sequence
 from pathlib import Path
 from typing import Any
 
-from . import __version__
-from .errors import ColumnError, OptionError, ReadError, ScalewrightError, WriteError
+from .errors import ColumnError, OptionError, ReadError, ScalewrightError
 
 PROG = "scalewright"
 
@@ -46,18 +48,28 @@ examples:
   scalewright fit harvest_2025.csv -m '*=zscore' -m pest_trap_count=yeojohnson \\
       --fit-where split=train -p harvest.swproj -o harvest_2025_scaled.xlsx
   scalewright fit harvest_2025.xlsx --sheet harvest_2025 -m soil_ph=minmax:low=-1,high=1 \\
-      --group-by orchard -p soil.swproj"""
+      --group-by orchard -p soil.swproj
+  scalewright fit payments_2025.csv --kind payment_cents=number \\
+      -m payment_cents=zscore -p payments.swproj"""
 
 APPLY_EXAMPLES = """\
 examples:
   scalewright apply harvest.swproj harvest_2026.csv -o harvest_2026_scaled.csv
-  scalewright apply harvest_2025_scaled.xlsx harvest_2026.xlsx -o harvest_2026_scaled.xlsx --clip"""
+  scalewright apply harvest_2025_scaled.xlsx harvest_2026.xlsx -o harvest_2026_scaled.xlsx --clip
+  scalewright apply harvest.swproj yields_2026.csv --as yield_2026=yield_kg -o yields_scaled.csv"""
 
 RESTORE_EXAMPLES = """\
 examples:
   scalewright restore harvest.swproj harvest_2026_scaled.csv -o harvest_2026_restored.csv
   scalewright restore harvest_2025_scaled.xlsx predicted_yield_scaled.csv \\
-      --as predicted_yield=yield_kg -o predicted_yield_kg.csv"""
+      --as predicted_yield=yield_kg -o predicted_yield_kg.csv
+  scalewright restore harvest.swproj predicted_yield_scaled.csv --as predicted_yield=yield_kg \\
+      --name predicted_yield=predicted_yield_kg -o predicted_yield_kg.csv"""
+
+REPORT_EXAMPLES = """\
+examples:
+  scalewright report harvest.swproj -o harvest_report.html
+  scalewright report harvest_2025_scaled.xlsx -o harvest_report.pdf"""
 
 SQL_EXAMPLES = """\
 dialects: duckdb, postgres, spark, snowflake, bigquery, tsql
@@ -106,6 +118,23 @@ class _Parser(argparse.ArgumentParser):
         return super().format_help()
 
 
+class VersionAction(argparse.Action):
+    """``--version``: the version line, then the shipped libraries and their licences."""
+
+    def __init__(self, option_strings, dest=argparse.SUPPRESS, **kwargs) -> None:
+        super().__init__(option_strings, dest, nargs=0, default=argparse.SUPPRESS, **kwargs)
+
+    def __call__(self, parser, namespace, values, option_string=None) -> None:
+        from .about import version_text
+
+        try:
+            print(version_text(), flush=True)
+        except BrokenPipeError:  # piped into a program that stopped reading (| head -1)
+            with contextlib.suppress(OSError):
+                sys.stdout = open(os.devnull, "w")  # noqa: SIM115
+        parser.exit()
+
+
 def build_parser() -> argparse.ArgumentParser:
     parser = _Parser(
         prog=PROG,
@@ -113,7 +142,9 @@ def build_parser() -> argparse.ArgumentParser:
         formatter_class=argparse.RawDescriptionHelpFormatter,
         epilog="Run 'scalewright COMMAND --help' for the options and examples of a command.",
     )
-    parser.add_argument("--version", action="version", version=f"%(prog)s {__version__}")
+    parser.add_argument(
+        "--version", action=VersionAction, help="show the version and the libraries' licences"
+    )
     commands = parser.add_subparsers(dest="command", metavar="COMMAND")
 
     p = commands.add_parser(
@@ -125,6 +156,12 @@ def build_parser() -> argparse.ArgumentParser:
         formatter_class=argparse.RawDescriptionHelpFormatter,
     )
     p.add_argument("file", metavar="FILE", help="data file or project file")
+    p.add_argument(
+        "--check-and-quit",
+        action="store_true",
+        help="open FILE with the detected settings, print what was read and quit (to check "
+        "that an installed copy starts; status 1 if FILE could not be opened)",
+    )
 
     p = commands.add_parser(
         "fit",
@@ -156,6 +193,16 @@ def build_parser() -> argparse.ArgumentParser:
         help="the project file to write (.swproj)",
     )
     _add_sheet(p)
+    p.add_argument(
+        "--kind",
+        dest="kinds",
+        metavar="COLUMN=KIND",
+        action="append",
+        default=[],
+        help="read COLUMN as number, identifier, text or date instead of the kind guessed "
+        "(for example amount_cents=number); kept in the project for apply and restore; "
+        "repeat for more columns",
+    )
     p.add_argument(
         "--group-by", metavar="COLUMN", help="fit one set of parameters per value of COLUMN"
     )
@@ -193,6 +240,15 @@ def build_parser() -> argparse.ArgumentParser:
         action="store_true",
         help="move values outside the fitted range to its nearest end first",
     )
+    p.add_argument(
+        "--as",
+        dest="mapping",
+        metavar="COLUMN=FITTED_COLUMN",
+        action="append",
+        default=[],
+        help="scale COLUMN of DATA with the parameters fitted for FITTED_COLUMN (for a file "
+        "whose column has another name); repeat for more columns",
+    )
 
     p = commands.add_parser(
         "restore",
@@ -215,6 +271,15 @@ def build_parser() -> argparse.ArgumentParser:
         action="append",
         default=[],
         help="restore COLUMN of DATA with the parameters fitted for SOURCE_COLUMN",
+    )
+    p.add_argument(
+        "--name",
+        dest="names",
+        metavar="COLUMN=NEW_NAME",
+        action="append",
+        default=[],
+        help="call restored COLUMN NEW_NAME in the output (by default it keeps its name); "
+        "repeat for more columns",
     )
 
     p = commands.add_parser(
@@ -268,6 +333,19 @@ def build_parser() -> argparse.ArgumentParser:
         formatter_class=argparse.RawDescriptionHelpFormatter,
     )
     p.add_argument("project", metavar="PROJECT", help="project file or scaled workbook")
+
+    p = commands.add_parser(
+        "report",
+        help="write a report of a project for colleagues and auditors (.html or .pdf)",
+        description="Write one file that records the project: the data file and its "
+        "fingerprint, the dates, and per column the method, parameters, the formula to "
+        "reverse it, the fit summary, warnings and histograms before and after. The "
+        "histograms need the data file; without it the report says why they are missing.",
+        epilog=REPORT_EXAMPLES,
+        formatter_class=argparse.RawDescriptionHelpFormatter,
+    )
+    p.add_argument("project", metavar="PROJECT_OR_WORKBOOK", help="project file or scaled workbook")
+    _add_output(p, "FILE", "the report to write (.html or .pdf)", True)
     return parser
 
 
@@ -408,6 +486,58 @@ def build_choices(table, specs: Sequence[tuple[str, Any]], group_by: str | None 
     return choices
 
 
+def parse_kinds(pairs: Sequence[str]) -> dict[str, str]:
+    """``--kind COLUMN=KIND`` pairs; split at the last ``=`` (a kind word holds none), so a
+    column name may contain ``=``."""
+    from .io import CORRECTABLE_KINDS
+
+    words = ", ".join(CORRECTABLE_KINDS)
+    out: dict[str, str] = {}
+    for text in pairs:
+        column, sep, kind = text.rpartition("=")
+        if not sep or not column.strip() or not kind.strip():
+            raise OptionError(f"--kind '{text}' must be written COLUMN=KIND, for example id=text")
+        column, kind = column.strip(), kind.strip().lower()
+        if kind not in CORRECTABLE_KINDS:
+            raise OptionError(f"--kind '{text}': '{kind}' is not a kind (use one of {words})")
+        if column in out and out[column] != kind:
+            raise OptionError(f"--kind names the column '{column}' twice")
+        out[column] = kind
+    return out
+
+
+def check_kinds(table, kinds: dict[str, str]) -> None:
+    """Every ``--kind`` column is in the table."""
+    for column in kinds:
+        if column not in table.data.columns:
+            raise ColumnError(
+                column,
+                f"(--kind) there is no such column in {table.source.name} "
+                f"(columns: {_name_list(table.data.columns)})",
+            )
+
+
+def check_identifiers(table, choices) -> None:
+    """A method on a column read as an identifier whose every cell is a number: say how to
+    read it as numbers instead (the general refusal comes later, in ``tasks``)."""
+    import shlex
+
+    from .io import identifier_of_numbers
+
+    for label, choice in choices.items():
+        if choice.method == "none":
+            continue
+        reason = identifier_of_numbers(table, label)
+        if reason is not None:
+            pair = f"{label}=number"
+            quoted = shlex.quote(pair) if shlex.quote(pair) != pair else f"'{pair}'"
+            raise ColumnError(
+                label,
+                f"was read as an identifier ({reason}), and identifiers are never scaled; "
+                f"add --kind {quoted} to scale it",
+            )
+
+
 def _name_list(names, limit: int = 12) -> str:
     names = [str(n) for n in names]
     shown = ", ".join(names[:limit])
@@ -434,10 +564,21 @@ def parse_mapping(pairs: Sequence[str], fitted: Sequence[str]) -> dict[str, str]
     return out
 
 
+def parse_names(pairs: Sequence[str]) -> dict[str, str]:
+    """``--name COLUMN=NEW_NAME`` pairs, split at the first ``=``."""
+    out: dict[str, str] = {}
+    for text in pairs:
+        column, new = _split_pair(text, "--name", "COLUMN=NEW_NAME")
+        if column in out:
+            raise OptionError(f"--name names the column '{column}' twice")
+        out[column] = new
+    return out
+
+
 # --------------------------------------------------------------------------- commands
 
 
-def _open_window(path: str | None) -> int:
+def _open_window(path: str | None, check_and_quit: bool = False) -> int:
     if path is not None and not Path(path).exists():
         raise ReadError(path, "there is no such file")
     try:
@@ -448,28 +589,25 @@ def _open_window(path: str | None) -> int:
                 "the window needs PySide6 (pip install PySide6-Essentials)"
             ) from None
         raise ScalewrightError(f"the window cannot start ({err})") from None
-    status = window_main(path=path)
+    status = window_main(path=path, check_and_quit=check_and_quit)
     return int(status or 0)
 
 
 def cmd_fit(args: argparse.Namespace) -> int:
     from .engine import FitSettings
-    from .io import ReadOptions, atomic_path, ensure_not_source, read_table
-    from .project import SUFFIX, project_to_json, save_project
+    from .io import ReadOptions, atomic_path, read_table
+    from .project import project_to_json, save_project
+    from .projects import check_project_target
     from .tasks import check_target, export_scaled, fit_project
 
-    project_path = Path(args.project)
-    if project_path.suffix.lower() != SUFFIX:
-        raise WriteError(project_path, f"a project file name must end in {SUFFIX}")
-    ensure_not_source(project_path, args.data)
-    if not project_path.absolute().parent.is_dir():
-        raise WriteError(project_path, "the folder does not exist")
+    project_path = check_project_target(args.project, args.data)
     output = check_target(args.output, source=args.data) if args.output else None
     if args.from_sql_result is not None:
         return _fit_from_sql_result(args, project_path, output)
     if not args.method:
         raise OptionError("fit needs at least one -m COLUMN=METHOD")
     specs = parse_method_specs(args.method)
+    kinds = parse_kinds(args.kinds)
     fit_where = None
     if args.fit_where is not None:
         fit_where = _split_pair(args.fit_where, "--fit-where", "COLUMN=VALUE, e.g. split=train")
@@ -479,7 +617,8 @@ def cmd_fit(args: argparse.Namespace) -> int:
         return _fit_duckdb(args, project_path, output, specs, FitSettings(fit_where, args.group_by))
 
     with _progress("reading") as progress:
-        table = read_table(args.data, ReadOptions(sheet=args.sheet), progress=progress)
+        table = read_table(args.data, ReadOptions(sheet=args.sheet, kinds=kinds), progress=progress)
+    check_kinds(table, kinds)
     if fit_where is not None and fit_where[0] not in table.data.columns:
         raise ColumnError(
             fit_where[0], f"(--fit-where) there is no such column in {table.source.name}"
@@ -489,6 +628,7 @@ def cmd_fit(args: argparse.Namespace) -> int:
             args.group_by, f"(--group-by) there is no such column in {table.source.name}"
         )
     choices = build_choices(table, specs, args.group_by)
+    check_identifiers(table, choices)
     if not any(c.method != "none" for c in choices.values()):
         raise OptionError(
             "no column to fit: every -m chose 'none' or '*' matched no numeric column"
@@ -586,11 +726,21 @@ def _report_notes(reports) -> list[str]:
 
 
 def cmd_apply(args: argparse.Namespace) -> int:
-    from .tasks import apply_to_file, check_target, describe_reports, load_project_or_workbook
+    from .tasks import (
+        MissingFittedColumn,
+        apply_to_file,
+        check_not_project_files,
+        check_target,
+        describe_reports,
+        load_project_or_workbook,
+    )
 
+    # The output is checked once: its name before the project is read, then that it is
+    # none of the project's own files.
     output = check_target(args.output, source=args.data)
     project = load_project_or_workbook(args.project)
-    check_target(output, source=args.data, project=project)
+    check_not_project_files(output, project)
+    mapping = parse_mapping(args.mapping, list(project.plan.columns) if project.plan else [])
     from .platform.files import apply_file, choose_engine
 
     if choose_engine(args.data, args.engine) == "duckdb":
@@ -598,15 +748,27 @@ def cmd_apply(args: argparse.Namespace) -> int:
             raise OptionError("--sheet is for workbooks; the DuckDB engine reads CSV and Parquet")
         if project.plan is None:
             raise ScalewrightError(f"{args.project}: the project has no fitted parameters")
-        reports = apply_file(project, args.data, output, clip=args.clip)
+        reports = apply_file(project, args.data, output, clip=args.clip, mapping=mapping)
         for line in describe_reports(reports):
             print(line)
         print(f"scaled data written to {output}")
         return 0
-    with _progress("scaling") as progress:
-        reports = apply_to_file(
-            project, args.data, output, clip=args.clip, sheet=args.sheet, progress=progress
-        )
+    try:
+        with _progress("scaling") as progress:
+            reports = apply_to_file(
+                project,
+                args.data,
+                output,
+                clip=args.clip,
+                mapping=mapping,
+                sheet=args.sheet,
+                progress=progress,
+                checked=True,
+            )
+    except MissingFittedColumn as err:
+        raise ScalewrightError(
+            f"{err}; if it has another name there, pair them with --as COLUMN={err.column}"
+        ) from None
     for line in describe_reports(reports):
         print(line)
     print(f"scaled data written to {output}")
@@ -616,18 +778,20 @@ def cmd_apply(args: argparse.Namespace) -> int:
 def cmd_restore(args: argparse.Namespace) -> int:
     from .tasks import (
         NothingToRestore,
+        check_not_project_files,
         check_target,
         describe_reports,
         load_project_or_workbook,
         restore_file,
     )
 
-    output = check_target(args.output, source=args.data)
+    output = check_target(args.output, source=args.data)  # once, as for apply
     project = load_project_or_workbook(args.project)
-    check_target(output, source=args.data, project=project)
+    check_not_project_files(output, project)
     if project.plan is None:
         raise ScalewrightError(f"{args.project}: the project has no fitted parameters")
     mapping = parse_mapping(args.mapping, list(project.plan.columns))
+    names = parse_names(args.names)
     from .platform.files import choose_engine
 
     if choose_engine(args.data, args.engine) == "duckdb":
@@ -636,7 +800,7 @@ def cmd_restore(args: argparse.Namespace) -> int:
         if args.sheet is not None:
             raise OptionError("--sheet is for workbooks; the DuckDB engine reads CSV and Parquet")
         try:
-            reports = restore_streamed(project, args.data, output, mapping)
+            reports = restore_streamed(project, args.data, output, mapping, names)
         except NothingToRestore as err:
             raise ScalewrightError(
                 f"{err}; name the pairs with --as COLUMN=SOURCE_COLUMN"
@@ -648,7 +812,14 @@ def cmd_restore(args: argparse.Namespace) -> int:
     try:
         with _progress("restoring") as progress:
             reports = restore_file(
-                project, args.data, output, mapping=mapping, sheet=args.sheet, progress=progress
+                project,
+                args.data,
+                output,
+                mapping=mapping,
+                names=names,
+                sheet=args.sheet,
+                progress=progress,
+                checked=True,
             )
     except NothingToRestore as err:
         raise ScalewrightError(f"{err}; name the pairs with --as COLUMN=SOURCE_COLUMN") from None
@@ -693,12 +864,27 @@ def cmd_sql(args: argparse.Namespace) -> int:
 
 
 def cmd_show(args: argparse.Namespace) -> int:
+    from .projects import is_project_file
     from .tasks import load_project_or_workbook
 
     project = load_project_or_workbook(args.project)
     path = Path(args.project)
-    for line in show_lines(project, path if path.suffix.lower() == ".swproj" else None):
+    for line in show_lines(project, path if is_project_file(path) else None):
         print(line)
+    return 0
+
+
+def cmd_report(args: argparse.Namespace) -> int:
+    from .report import check_report_target, write_report
+    from .tasks import load_project_or_workbook
+
+    output = check_report_target(args.output)
+    project = load_project_or_workbook(args.project)
+    with _progress("reading the data") as progress:
+        report = write_report(project, output, progress=progress)
+    print(f"report written to {output}")
+    if report.figures_missing:
+        print(f"  note: {report.figures_missing}")
     return 0
 
 
@@ -796,7 +982,8 @@ _COMMANDS: dict[str, Callable[[argparse.Namespace], int]] = {
     "restore": cmd_restore,
     "show": cmd_show,
     "sql": cmd_sql,
-    "open": lambda args: _open_window(args.file),
+    "report": cmd_report,
+    "open": lambda args: _open_window(args.file, args.check_and_quit),
 }
 
 
@@ -810,6 +997,43 @@ def _fail(message: str) -> int:
     return 1
 
 
+class Stopped(BaseException):
+    """SIGINT or SIGTERM arrived: unwinds like Ctrl-C, so every ``finally`` and
+    ``atomic_path`` removes its unfinished files before the command ends."""
+
+    def __init__(self, signum: int) -> None:
+        super().__init__(signum)
+        self.signum = signum
+
+
+_STOP_WORDS = {signal.SIGINT: "by Ctrl-C", signal.SIGTERM: "by a request to end (SIGTERM)"}
+
+
+@contextlib.contextmanager
+def _stop_on_signals():
+    """Turn SIGINT and SIGTERM into :class:`Stopped` while a batch command runs.
+
+    Only the first signal is acted on; later ones are ignored so that removing the
+    unfinished files is not itself cut short.
+    """
+    if threading.current_thread() is not threading.main_thread():
+        yield
+        return
+    caught = tuple(_STOP_WORDS)
+
+    def stop(signum, frame) -> None:
+        for s in caught:
+            signal.signal(s, signal.SIG_IGN)
+        raise Stopped(signum)
+
+    previous = {s: signal.signal(s, stop) for s in caught}
+    try:
+        yield
+    finally:
+        for s, handler in previous.items():
+            signal.signal(s, handler)
+
+
 def main(argv: Sequence[str] | None = None) -> int:
     """Run the command line; return the exit status."""
     parser = build_parser()
@@ -817,7 +1041,16 @@ def main(argv: Sequence[str] | None = None) -> int:
     try:
         if args.command is None:
             return _open_window(None)
-        return _COMMANDS[args.command](args)
+        if args.command == "open":
+            return _COMMANDS[args.command](args)
+        with _stop_on_signals():
+            return _COMMANDS[args.command](args)
+    except Stopped as stop:
+        # The conventional status of a program ended by a signal: 128 + its number.
+        sys.stderr.write(
+            f"{PROG}: stopped {_STOP_WORDS[stop.signum]}; no unfinished file was left\n"
+        )
+        return 128 + int(stop.signum)
     except ScalewrightError as err:
         return _fail(str(err))
     except OSError as err:
@@ -830,7 +1063,7 @@ def main(argv: Sequence[str] | None = None) -> int:
     except MemoryError:
         return _fail("not enough memory for this file")
     except KeyboardInterrupt:
-        sys.stderr.write(f"\n{PROG}: interrupted\n")
+        sys.stderr.write(f"{PROG}: stopped by Ctrl-C\n")
         return 130
     except Exception as err:  # a bug: still one line, never a traceback
         if os.environ.get("SCALEWRIGHT_DEBUG"):

@@ -32,6 +32,10 @@ class ReadError(ScalewrightError):
         super().__init__(f"{path}: {message}")
 
 
+class UnsupportedFile(ReadError):
+    """The file is not a table of a type that can be read (a README, a PDF, prose)."""
+
+
 class WriteError(ScalewrightError):
     """A file could not be written; nothing was left behind at the target path."""
 

@@ -194,10 +194,12 @@ def check_target(
     *,
     source: str | os.PathLike | None = None,
     project: Project | None = None,
+    formats: Sequence[str] = SUPPORTED_WRITE,
 ) -> Path:
     """The path an output may be written to, or :class:`WriteError` saying why not.
 
-    Refused: a project file name, a format that cannot be written, a folder, ``source``
+    Refused: a project file name, a format not in ``formats`` (the data formats unless
+    told otherwise, for example the report's), a folder, ``source``
     (the file the data is read from), and, for ``project``, the file it was loaded from
     (a project file or a scaled workbook) and the data file it was fitted on. Nothing is
     written; every job that writes an output checks here first, and so may a dialog.
@@ -207,32 +209,35 @@ def check_target(
     if suffix == SUFFIX:
         raise WriteError(
             target,
-            "this name is for project files; choose a data file name ("
-            + ", ".join(SUPPORTED_WRITE)
-            + ")",
+            "this name is for project files; choose a data file name (" + ", ".join(formats) + ")",
         )
-    if suffix not in SUPPORTED_WRITE:
+    if suffix not in formats:
         raise WriteError(
             target,
-            f"cannot write '{suffix or 'no extension'}' files; use one of "
-            + ", ".join(SUPPORTED_WRITE),
+            f"cannot write '{suffix or 'no extension'}' files; use one of " + ", ".join(formats),
         )
     ensure_not_source(target, source)
     if project is not None:
-        _ensure_not(
-            target,
-            project.loaded_from,
-            "this is the file the parameters come from; choose another name so it stays as it is",
-        )
-        _ensure_not(
-            target,
-            project.source,
-            "this is the data file the parameters were fitted on; choose another name so it "
-            "stays as it is",
-        )
+        check_not_project_files(target, project)
     if target.is_dir():
         raise WriteError(target, "this is a folder; give a file name")
     return target
+
+
+def check_not_project_files(target: Path, project: Project) -> None:
+    """:class:`WriteError` when ``target`` is the file ``project`` was loaded from (a
+    project file or a scaled workbook) or the data file it was fitted on."""
+    _ensure_not(
+        target,
+        project.loaded_from,
+        "this is the file the parameters come from; choose another name so it stays as it is",
+    )
+    _ensure_not(
+        target,
+        project.source,
+        "this is the data file the parameters were fitted on; choose another name so it "
+        "stays as it is",
+    )
 
 
 def _ensure_not(target: Path, other: Path | None, message: str) -> None:
@@ -264,6 +269,19 @@ def write_output(
         headers = data.headers if headers is None else headers
         data = data.data
     target = check_target(target, source=source, project=project)
+    _write_checked(target, data, headers, project, progress=progress, cancelled=cancelled)
+
+
+def _write_checked(
+    target: Path,
+    data: pd.DataFrame,
+    headers: Sequence[str] | None,
+    project: Project | None,
+    *,
+    progress: Progress | None = None,
+    cancelled: CancelCheck | None = None,
+) -> None:
+    """:func:`write_output` to a target :func:`check_target` has passed."""
     if headers is None:
         headers = [str(c) for c in data.columns]
     if target.suffix.lower() == ".xlsx" and project is not None and project.plan is not None:
@@ -296,6 +314,15 @@ def export_scaled(
     return apply_table(project, table, target, clip=clip, progress=progress, cancelled=cancelled)
 
 
+def reading_for(project: Project, options: ReadOptions | None = None) -> ReadOptions:
+    """How to read a new file for ``project``: the layout as given (else detected afresh),
+    with the project's kind corrections unless ``options`` carries its own."""
+    options = options or ReadOptions()
+    if options.kinds or not project.read_options.kinds:
+        return options
+    return dataclasses.replace(options, kinds=project.read_options.kinds)
+
+
 def _read(
     path: str | os.PathLike,
     options: ReadOptions | None,
@@ -309,27 +336,56 @@ def _read(
     return read_table(path, options, progress=progress, cancelled=cancelled)
 
 
+def _new_file(
+    project: Project,
+    data_path: str | os.PathLike,
+    target: str | os.PathLike,
+    options: ReadOptions | None,
+    sheet: str | None,
+    progress: Progress | None,
+    cancelled: CancelCheck | None,
+    checked: bool,
+) -> tuple[Path, Table]:
+    """The checked target and the new file read as the project reads it (the first half
+    of the progress), for applying or restoring."""
+    _fitted(project)
+    target = Path(target) if checked else check_target(target, source=data_path, project=project)
+    reading = reading_for(project, options)
+    return target, _read(data_path, reading, sheet, _part(progress, 0.0, 0.5), cancelled)
+
+
 def apply_to_file(
     project: Project,
     data_path: str | os.PathLike,
     target: str | os.PathLike,
     *,
     clip: bool = False,
+    mapping: Mapping[str, str] | None = None,
     sheet: str | None = None,
     options: ReadOptions | None = None,
     progress: Progress | None = None,
     cancelled: CancelCheck | None = None,
+    checked: bool = False,
 ) -> list[ColumnReport]:
     """Read ``data_path`` and scale it with the saved parameters (see :func:`apply_table`).
 
-    ``options`` says how to read the file (by default its layout is detected afresh);
-    ``sheet``, when given, picks the worksheet over ``options.sheet``.
+    ``options`` says how to read the file (by default its layout is detected afresh, and
+    the project's kind corrections are kept: :func:`reading_for`); ``sheet``, when given,
+    picks the worksheet over ``options.sheet``. ``checked`` says the caller has already
+    passed ``target`` through :func:`check_target` with this data file and project (the
+    output is checked once, before anything is read).
     """
-    _fitted(project)
-    check_target(target, source=data_path, project=project)
-    table = _read(data_path, options, sheet, _part(progress, 0.0, 0.5), cancelled)
-    return apply_table(
-        project, table, target, clip=clip, progress=_part(progress, 0.5, 1.0), cancelled=cancelled
+    target, table = _new_file(
+        project, data_path, target, options, sheet, progress, cancelled, checked
+    )
+    return _apply_checked(
+        project,
+        table,
+        target,
+        clip=clip,
+        mapping=mapping,
+        progress=_part(progress, 0.5, 1.0),
+        cancelled=cancelled,
     )
 
 
@@ -339,28 +395,44 @@ def apply_table(
     target: str | os.PathLike,
     *,
     clip: bool = False,
+    mapping: Mapping[str, str] | None = None,
     progress: Progress | None = None,
     cancelled: CancelCheck | None = None,
 ) -> list[ColumnReport]:
     """Scale a table read from a new file with the saved parameters (nothing is refitted)
     and write it to ``target``.
 
-    The reports count, per column, the values outside the range the parameters were
-    fitted on; with ``clip`` those are moved to the nearest end of that range first.
+    Each fitted column is scaled in the column of the same name, unless ``mapping`` pairs
+    it with another (file column -> fitted column, e.g. ``{"yield_2026": "yield_kg"}``),
+    as for :func:`restore_table`. The reports count, per column, the values outside the
+    range the parameters were fitted on; with ``clip`` those are moved to the nearest end
+    of that range first.
     """
-    plan = _fitted(project)
-    check_target(target, source=table.source, project=project)
-    _check_fitted_columns_numeric(table, plan.columns)
-    data, reports = apply(blank_as_numbers(table, plan.columns), plan, clip=clip)
-    write_output(
-        target,
-        data,
-        table.headers,
-        project,
-        source=table.source,
-        progress=progress,
-        cancelled=cancelled,
+    _fitted(project)
+    target = check_target(target, source=table.source, project=project)
+    return _apply_checked(
+        project, table, target, clip=clip, mapping=mapping, progress=progress, cancelled=cancelled
     )
+
+
+def _apply_checked(
+    project: Project,
+    table: Table,
+    target: Path,
+    *,
+    clip: bool,
+    mapping: Mapping[str, str] | None,
+    progress: Progress | None,
+    cancelled: CancelCheck | None,
+) -> list[ColumnReport]:
+    """:func:`apply_table` to a target :func:`check_target` has passed."""
+    plan = _fitted(project)
+    mapping = _checked_pairs(table, plan, mapping or {})
+    paired = set(mapping.values())
+    columns = list(mapping) + [c for c in plan.columns if c not in paired]
+    _check_fitted_columns_numeric(table, columns)
+    data, reports = apply(blank_as_numbers(table, columns), plan, clip=clip, mapping=mapping)
+    _write_checked(target, data, table.headers, project, progress=progress, cancelled=cancelled)
     return reports
 
 
@@ -375,10 +447,16 @@ def not_numbers(table: Table, label: str) -> str:
     return ""
 
 
+class MissingFittedColumn(ColumnError):
+    """A fitted column is not in the new file (each face adds how to pair it)."""
+
+
 def _check_fitted_columns_numeric(table: Table, columns: Sequence[str]) -> None:
     for label in columns:
         if label not in table.data.columns:
-            raise ColumnError(label, f"was fitted in the project but is not in {table.source.name}")
+            raise MissingFittedColumn(
+                label, f"was fitted in the project but is not in {table.source.name}"
+            )
         if why := not_numbers(table, label):
             raise ColumnError(label, f"{why}, so it cannot be scaled or restored")
 
@@ -409,22 +487,26 @@ def restore_file(
     target: str | os.PathLike,
     *,
     mapping: Mapping[str, str] | None = None,
+    names: Mapping[str, str] | None = None,
     exact: bool = False,
     sheet: str | None = None,
     options: ReadOptions | None = None,
     progress: Progress | None = None,
     cancelled: CancelCheck | None = None,
+    checked: bool = False,
 ) -> list[ColumnReport]:
     """Read ``data_path`` and turn its scaled values back into original units (see
-    :func:`restore_table`). ``options`` and ``sheet`` as for :func:`apply_to_file`."""
-    _fitted(project)
-    check_target(target, source=data_path, project=project)
-    table = _read(data_path, options, sheet, _part(progress, 0.0, 0.5), cancelled)
-    return restore_table(
+    :func:`restore_table`). ``options``, ``sheet`` and ``checked`` as for
+    :func:`apply_to_file`."""
+    target, table = _new_file(
+        project, data_path, target, options, sheet, progress, cancelled, checked
+    )
+    return _restore_checked(
         project,
         table,
         target,
         mapping=mapping,
+        names=names,
         exact=exact,
         progress=_part(progress, 0.5, 1.0),
         cancelled=cancelled,
@@ -437,6 +519,7 @@ def restore_table(
     target: str | os.PathLike,
     *,
     mapping: Mapping[str, str] | None = None,
+    names: Mapping[str, str] | None = None,
     exact: bool = False,
     progress: Progress | None = None,
     cancelled: CancelCheck | None = None,
@@ -447,12 +530,54 @@ def restore_table(
     overrides pairs (file column -> fitted column, e.g. ``{"predicted_yield": "yield_kg"}``).
     With ``exact``, only the pairs in ``mapping`` are restored (the window's mapping table,
     where the user may set a name match to "leave as is"). Columns not restored pass
-    through untouched. The output is a plain table.
+    through untouched. ``names`` gives a restored column a new name in the output (file
+    column -> new name, e.g. ``{"predicted_yield": "predicted_yield_kg"}``, now that it
+    holds kilograms); without it each keeps its name. The output is a plain table.
     """
+    _fitted(project)
+    target = check_target(target, source=table.source, project=project)
+    return _restore_checked(
+        project,
+        table,
+        target,
+        mapping=mapping,
+        names=names,
+        exact=exact,
+        progress=progress,
+        cancelled=cancelled,
+    )
+
+
+def _restore_checked(
+    project: Project,
+    table: Table,
+    target: Path,
+    *,
+    mapping: Mapping[str, str] | None,
+    names: Mapping[str, str] | None,
+    exact: bool,
+    progress: Progress | None,
+    cancelled: CancelCheck | None,
+) -> list[ColumnReport]:
+    """:func:`restore_table` to a target :func:`check_target` has passed."""
     plan = _fitted(project)
-    check_target(target, source=table.source, project=project)
     pairs = {} if exact else auto_mapping(list(table.data.columns), project)
-    for column, fitted in (mapping or {}).items():
+    pairs.update(_checked_pairs(table, plan, mapping or {}))
+    if not pairs:
+        raise NothingToRestore(
+            f"{table.source.name}: no column matches a fitted column of the project "
+            f"(fitted: {', '.join(plan.columns) or 'none'})"
+        )
+    _check_fitted_columns_numeric(table, list(pairs))
+    headers = renamed_headers(table, pairs, names or {})
+    data, reports = restore(blank_as_numbers(table, pairs), plan, pairs)
+    _write_checked(target, data, headers, None, progress=progress, cancelled=cancelled)
+    return reports
+
+
+def _checked_pairs(table: Table, plan: FittedPlan, mapping: Mapping[str, str]) -> dict[str, str]:
+    """``mapping`` (file column -> fitted column) after checking both names exist."""
+    for column, fitted in mapping.items():
         if column not in table.data.columns:
             raise ColumnError(column, f"is not in {table.source.name}")
         if fitted not in plan.columns:
@@ -460,24 +585,38 @@ def restore_table(
             raise ColumnError(
                 fitted, f"has no fitted parameters in the project (fitted: {fitted_names})"
             )
-        pairs[column] = fitted
-    if not pairs:
-        raise NothingToRestore(
-            f"{table.source.name}: no column matches a fitted column of the project "
-            f"(fitted: {', '.join(plan.columns) or 'none'})"
-        )
-    _check_fitted_columns_numeric(table, list(pairs))
-    data, reports = restore(blank_as_numbers(table, pairs), plan, pairs)
-    write_output(
-        target,
-        data,
-        table.headers,
-        None,
-        source=table.source,
-        progress=progress,
-        cancelled=cancelled,
-    )
-    return reports
+    return dict(mapping)
+
+
+def renamed_headers(
+    table: Table, restored: Mapping[str, str], names: Mapping[str, str]
+) -> list[str]:
+    """The output's header row: ``table.headers`` with each restored column named in
+    ``names`` (file column -> new name) given its new name.
+
+    Refused: renaming a column that is not restored, an empty name, and a name that
+    another column of the output already has.
+    """
+    headers = list(table.headers)
+    labels = [str(c) for c in table.data.columns]
+    for column, new in names.items():
+        if column not in labels:
+            raise ColumnError(column, f"is not in {table.source.name}, so it cannot be renamed")
+        if column not in restored:
+            raise ColumnError(column, "is not restored, so it keeps its name")
+        if not new.strip():
+            raise ColumnError(column, "the new name is empty")
+        headers[labels.index(column)] = new
+    counts: dict[str, int] = {}
+    for h in headers:
+        counts[h] = counts.get(h, 0) + 1
+    for column, new in names.items():
+        if counts[new] > 1:
+            raise ColumnError(
+                column,
+                f"cannot be renamed '{new}': the output already has a column of that name",
+            )
+    return headers
 
 
 def load_project_or_workbook(path: str | os.PathLike) -> Project:

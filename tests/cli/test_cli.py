@@ -367,3 +367,35 @@ def test_progress_only_on_a_terminal():
     loud.done()
     assert loud.stream.text.split("\r")[1:4] == ["reading:   0%", "reading:  50%", "reading: 100%"]
     assert loud.stream.text.endswith("\r")
+
+
+@pytest.mark.parametrize("command", ["apply", "restore"])
+def test_the_output_of_apply_and_restore_is_checked_once(season, capsys, monkeypatch, command):
+    """One ``apply`` used to check its output five times (twice in the command, then in
+    apply_to_file, apply_table and write_output): now once, and still before writing."""
+    from scalewright import tasks
+
+    project = season / "p.swproj"
+    assert cli.main(["fit", str(season / "harvest_2025.csv"), "-m", "yield_kg=zscore",
+                     "-p", str(project)]) == 0  # fmt: skip
+    real = tasks.check_target
+    calls = []
+
+    def counted(*args, **kwargs):
+        calls.append(args)
+        return real(*args, **kwargs)
+
+    monkeypatch.setattr(tasks, "check_target", counted)
+    data = season / ("harvest_2026.csv" if command == "apply" else "predicted_yield_scaled.csv")
+    extra = [] if command == "apply" else ["--as", "predicted_yield=yield_kg"]
+    out = season / "out.csv"
+    assert cli.main([command, str(project), str(data), "-o", str(out), *extra]) == 0
+    assert len(calls) == 1 and out.is_file()
+    # the one check still refuses the project's own files and the data read
+    calls.clear()
+    capsys.readouterr()
+    assert cli.main([command, str(project), str(data), "-o", str(data), *extra]) == 1
+    assert len(calls) == 1
+    refused = season / "harvest_2025.csv"  # the file the parameters were fitted on
+    assert cli.main([command, str(project), str(data), "-o", str(refused), *extra]) == 1
+    assert "the data file the parameters were fitted on" in capsys.readouterr().err

@@ -255,7 +255,7 @@ def test_minmax_low_not_below_high_is_an_option_error():
 
 def test_unknown_method_lists_the_methods():
     with pytest.raises(OptionError) as err:
-        get_method("quantile")
+        get_method("sort-of-scale")
     for name in [
         "none",
         "minmax",

@@ -22,7 +22,7 @@ def harvest_table():
 
 @pytest.fixture
 def session(harvest_table):
-    from scalewright.gui.state import Session
+    from scalewright.session import Session
 
     s = Session()
     s.load_table(harvest_table)

@@ -16,7 +16,7 @@ import pandas as pd
 import pytest
 from dialog_helpers import save_screenshot
 from PySide6.QtCore import QPoint, Qt
-from PySide6.QtWidgets import QDialog, QFileDialog
+from PySide6.QtWidgets import QDialog
 
 from scalewright import engine, tasks
 from scalewright import io as swio
@@ -331,15 +331,15 @@ def test_groups_not_seen_when_fitting_are_listed(qtbot, tmp_path):
 
 def test_choose_buttons_use_the_file_dialogs(qtbot, dialog, tmp_path, monkeypatch):
     target = tmp_path / "scaled_by_button"
+    from scalewright.gui import file_dialogs
+
     monkeypatch.setattr(
-        QFileDialog,
-        "getOpenFileName",
-        staticmethod(lambda *a, **k: (str(SAMPLE / "harvest_2026.xlsx"), "")),
+        file_dialogs, "open_file_name", lambda *a, **k: (str(SAMPLE / "harvest_2026.xlsx"), "")
     )
     monkeypatch.setattr(
-        QFileDialog,
-        "getSaveFileName",
-        staticmethod(lambda *a, **k: (str(target), "Comma-separated text (*.csv)")),
+        file_dialogs,
+        "save_file_name",
+        lambda *a, **k: (str(target), "Comma-separated text (*.csv)"),
     )
     with qtbot.waitSignal(dialog.previewReady, timeout=30000):
         qtbot.mouseClick(dialog.data_row.button, Qt.MouseButton.LeftButton)

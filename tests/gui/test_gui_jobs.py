@@ -175,3 +175,43 @@ def test_restore_predictions_with_a_mapping(qtbot, opened, tmp_path, wait_job, h
     expected = scaled["predicted_yield"] * 36.650738430940336 + 75.54385054488843
     np.testing.assert_allclose(got["predicted_yield"], expected, rtol=1e-12)
     assert list(got["tree_code"][:3]) == list(scaled["tree_code"][:3])
+
+
+def test_cancelling_a_workbook_write_leaves_nothing_behind(qtbot, runner, tmp_path, monkeypatch):
+    """Issue 8, "Nothing left behind": Cancel in the middle of a workbook write keeps the
+    earlier file and leaves no ``.part`` file, nor xlsxwriter's row files in the system's
+    temporary folder."""
+    import tempfile
+
+    system_temp = tmp_path / "system-temp"
+    out_dir = tmp_path / "out"
+    system_temp.mkdir()
+    out_dir.mkdir()
+    monkeypatch.setattr(tempfile, "tempdir", str(system_temp))
+    target = out_dir / "harvest_scaled.xlsx"
+    target.write_bytes(b"the earlier workbook")
+    frame = pd.DataFrame({"yield_kg": np.linspace(40.0, 120.0, 60_000)})
+    mid_write = threading.Event()
+    cancel_pressed = threading.Event()
+
+    def work(progress, cancelled):
+        def report(fraction):
+            if fraction > 0:  # rows are being written into the unfinished file
+                mid_write.set()
+                cancel_pressed.wait(5)
+            progress(fraction)
+
+        tasks.write_output(target, frame, ["yield_kg"], None, progress=report, cancelled=cancelled)
+
+    job = runner.run("Writing", work)
+    qtbot.waitUntil(mid_write.is_set, timeout=10_000)
+    assert any(p.name.endswith(".part") for p in out_dir.iterdir())
+    assert list(system_temp.iterdir())  # xlsxwriter's row file, while it writes
+    qtbot.mouseClick(runner.cancel_button, Qt.MouseButton.LeftButton)
+    cancel_pressed.set()
+    with qtbot.waitSignal(job.ended, timeout=10_000):
+        pass
+    assert job.outcome == "cancelled"
+    assert [p.name for p in out_dir.iterdir()] == ["harvest_scaled.xlsx"]
+    assert target.read_bytes() == b"the earlier workbook"
+    assert list(system_temp.iterdir()) == []

@@ -17,7 +17,7 @@ from scalewright.engine import (
 )
 from scalewright.errors import ColumnError, OptionError, ScalewrightError
 from scalewright.gui import commands
-from scalewright.gui.state import Session
+from scalewright.session import Session
 
 
 class Recorder:
@@ -425,7 +425,7 @@ def test_switching_on_before_a_fit_lands_shows_the_latest_choice(session, stack,
 
 
 def test_column_facts_are_what_the_session_would_compute(harvest_table):
-    from scalewright.gui.state import column_facts
+    from scalewright.session import column_facts
 
     facts = column_facts(harvest_table)
     numbers = [c for c in harvest_table.data.columns if str(harvest_table.kinds[c]) == "number"]

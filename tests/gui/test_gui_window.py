@@ -140,6 +140,34 @@ def test_choose_methods_multi_select_undo_redo_and_suggest(qtbot, opened):
     w.act_undo.trigger()
     assert s.choice("pest_trap_count").method == "none"
     assert s.dirty
+    # The reason went with the undo (issue 8, item 2) ...
+    assert w.method_panel.reason.text() == ""
+    # ... and goes when another column is selected; it stays while nothing changed.
+    w.act_redo.trigger()
+    qtbot.mouseClick(w.method_panel.suggest_button, Qt.MouseButton.LeftButton)
+    assert "mostly zeros" in w.method_panel.reason.text()
+    w.method_panel.refresh()
+    assert "mostly zeros" in w.method_panel.reason.text()
+    click_row(qtbot, w, "yield_kg")
+    assert w.method_panel.reason.text() == ""
+
+
+def test_a_bar_or_range_readout_does_not_follow_to_another_column(qtbot, opened):
+    """Issue 8, item 2: 'Bar 12 of 30: ...' of one column must not stay on another."""
+    w = opened
+    h = w.histograms
+    click_row(qtbot, w, "yield_kg")
+    assert "Bar 6 of" in h.hover_bar(5)
+    click_row(qtbot, w, "soil_ph")
+    assert h.info.text().strip() == ""
+    h.range_button.click()
+    assert "Selected range" in h.info.text()
+    low = h.range.low
+    click_row(qtbot, w, "yield_kg")
+    # The range is laid out anew on the new column, not carried over in its old units.
+    assert h.range.low != low
+    f = w.session.figures("yield_kg")
+    assert f.min <= h.range.low <= h.range.high <= f.max
 
 
 def test_fit_on_training_rows_and_an_unfittable_choice(qtbot, opened, harvest_table):
@@ -184,7 +212,11 @@ def test_histograms_hover_and_range_are_linked(qtbot, opened):
     assert h.hovered == i
     x0, x1, height = h.scaled.hovered_bar()
     assert (x0, x1) == pytest.approx((edges[i], edges[i + 1]))
-    assert height == hist.counts[i]
+    # Box-Cox widens some bars: the scaled side draws count per unit, so the area is the
+    # count, and its axis says so (issue 8, item 11); the original side keeps counts.
+    assert height == pytest.approx(hist.counts[i] / (edges[i + 1] - edges[i]))
+    assert h.scaled.plot.getAxis("left").labelText == "count per unit of width"
+    assert h.original.plot.getAxis("left").labelText == "count"
     assert f"{int(hist.counts[i]):,} values" in h.info.text()
     # and from the scaled side: the twin on the original side lights up
     move_mouse(h.scaled.widget, (edges[i + 2] + edges[i + 3]) / 2, 1)
@@ -678,7 +710,7 @@ def test_opening_a_project_shows_its_table_once_with_the_loading_jobs_figures(
 ):
     import threading
 
-    from scalewright.gui import state
+    from scalewright.session import figures as state
 
     w = opened
     _, project_path = _saved_project(qtbot, w, tmp_path, wait_job)
@@ -715,18 +747,18 @@ def test_opening_a_project_looks_for_its_data_file_in_the_loading_job(
 ):
     import threading
 
-    from scalewright.gui import main_window
+    from scalewright import projects
 
     w = opened
     _, project_path = _saved_project(qtbot, w, tmp_path, wait_job)
     threads = []
-    real = main_window.locate_source
+    real = projects.locate_source
 
     def locate(*args, **kwargs):
         threads.append(threading.current_thread() is threading.main_thread())
         return real(*args, **kwargs)
 
-    monkeypatch.setattr(main_window, "locate_source", locate)
+    monkeypatch.setattr(projects, "locate_source", locate)
     w.open_project(project_path)
     wait_job(w)
     assert threads == [False]
@@ -818,17 +850,90 @@ def test_writing_waits_for_fits_still_running(qtbot, window, big_table, tmp_path
 def test_export_uses_the_file_type_chosen_in_the_dialog(
     qtbot, opened, tmp_path, wait_job, monkeypatch
 ):
-    from scalewright.gui import main_window
+    from scalewright.gui import file_dialogs
 
     w = opened
     click_row(qtbot, w, "yield_kg")
     choose_method(w, "zscore")
     monkeypatch.setattr(
-        main_window.QFileDialog,
-        "getSaveFileName",
+        file_dialogs,
+        "save_file_name",
         lambda *a, **k: (str(tmp_path / "scaled"), "Comma-separated text (*.csv)"),
     )
     w.act_export.trigger()
     wait_job(w)
     assert (tmp_path / "scaled.csv").is_file()
     assert not (tmp_path / "scaled.xlsx").exists()
+
+
+def test_file_dialogs_open_readable_and_remember_their_size(qtbot, qapp):
+    """Issue 8, item 7: open and save dialogs large enough to read, their size kept."""
+    from PySide6.QtCore import QSettings
+
+    from scalewright.gui import file_dialogs
+
+    QSettings().remove(file_dialogs.SETTINGS_KEY)
+    d = file_dialogs.make_dialog(None, "Open data", "", "Data files (*.csv)", save=False)
+    assert (d.width(), d.height()) == file_dialogs.DEFAULT_SIZE
+    d.resize(760, 560)  # within the offscreen screen (800 x 600), which restoring respects
+    file_dialogs.remember(d)
+    again = file_dialogs.make_dialog(None, "Save as", "", "Workbook (*.xlsx)", save=True)
+    assert (again.width(), again.height()) == (760, 560)
+    QSettings().remove(file_dialogs.SETTINGS_KEY)
+
+
+def test_the_window_opens_no_larger_than_the_screen(qtbot, window):
+    """Issue 8, item 1: at 1360 x 860 on a 1280 x 800 screen the method panel ran past the
+    window's edge; the window now opens within the screen's free area (offscreen: 800 x
+    600), with the method panel in view. Checked by eye under Xvfb at 1280 x 800 too."""
+    free = window.screen().availableGeometry()
+    assert window.width() <= free.width() and window.height() <= free.height()
+    window.show()
+    right = window.method_scroll.geometry().right()
+    assert right <= window.centralWidget().width()
+
+
+def test_kept_and_refitted_columns_each_record_where_their_parameters_came_from(
+    qtbot, opened, tmp_path, wait_job
+):
+    """The mixed case: open a project whose data changed, keep the saved parameters,
+    refit one column, save. The kept column still says it was fitted on the file as it
+    was (its size, SHA-256 and row count); the refitted one says the file as it is now."""
+    w = opened
+    data = tmp_path / "harvest.csv"
+    shutil.copy(HARVEST_2025, data)
+    w.load_data(data)
+    wait_job(w)
+    click_row(qtbot, w, "yield_kg")
+    choose_method(w, "zscore")
+    click_row(qtbot, w, "soil_ph")
+    choose_method(w, "minmax")
+    project_path = tmp_path / "h.swproj"
+    assert w.save_project(project_path, wait=True)
+    first = load_project(project_path)
+    with data.open("a", encoding="utf-8") as f:
+        f.write("999999,Hilltop,Russet,2001-04-01,24,80.1,5000.0,900,13.1,4000,0,6.5,train\n")
+    w.ask_keep_saved_parameters = lambda name: True
+    w.open_project(project_path)
+    wait_job(w)
+    click_row(qtbot, w, "soil_ph")
+    choose_method(w, "zscore")  # refitted on the file as it is now
+    again = tmp_path / "again.swproj"
+    assert w.save_project(again, wait=True)
+    second = load_project(again)
+    now = tasks.file_fingerprint(data)
+    old = (first.source_size, first.source_sha256)
+    assert now != old
+    kept, refitted = second.fitted_on("yield_kg"), second.fitted_on("soil_ph")
+    assert (kept.size, kept.sha256, kept.rows) == (*old, 2412)
+    assert (refitted.size, refitted.sha256, refitted.rows) == (*now, 2413)
+    assert second.plan["yield_kg"].pooled.params == first.plan["yield_kg"].pooled.params
+    # Reopened on the same file: nothing is asked, and each column keeps its own record.
+    w.ask_keep_saved_parameters = lambda name: pytest.fail("asked about an unchanged file")
+    w.open_project(again)
+    wait_job(w)
+    third = tmp_path / "third.swproj"
+    assert w.save_project(third, wait=True)
+    reloaded = load_project(third)
+    assert reloaded.fitted_on("yield_kg") == kept
+    assert reloaded.fitted_on("soil_ph") == refitted

@@ -214,7 +214,7 @@ def test_workbook_shows_the_sheet_and_hides_the_text_settings(make_dialog, tmp_p
         ("garbage.csv", bytes(range(256)) * 8, "binary data"),
         ("empty.csv", b"", "empty"),
         ("missing.csv", None, "does not exist"),
-        ("notes.docx", b"PK\x03\x04", "cannot read"),
+        ("notes.docx", b"PK\x03\x04", "not supported"),
     ],
 )
 def test_unreadable_files_show_a_message_and_cannot_be_opened(
@@ -280,3 +280,35 @@ def test_choosing_another_sheet_reads_that_sheet(qtbot, make_dialog, tmp_path):
     assert list(frame.columns) == ["tree_code", "yield_kg"]
     assert frame["tree_code"].tolist() == ["000076", "000081"]
     np.testing.assert_array_equal(frame["yield_kg"].to_numpy(float), [64.6, 58.9])
+
+
+@pytest.mark.parametrize(
+    ("name", "content", "words"),
+    [
+        ("README.md", b"# Orchard notes\n\nPicked on Tuesday.\n", "a Markdown text"),
+        ("report.pdf", b"%PDF-1.7 invented", "a PDF document"),
+        (
+            "notes.txt",
+            b"The north slope was pruned on the third day of March.\n"
+            b"Rain held off until the evening, so the pickers kept going.\n"
+            b"Next year we plan to net the young trees against the birds.\n",
+            "does not look like a table",
+        ),
+    ],
+)
+def test_a_file_that_is_not_a_table_says_so_and_lists_the_types(
+    make_dialog, tmp_path, name, content, words
+):
+    """Issue 8, item 5: not "cannot be read with these settings" and an empty box."""
+    path = tmp_path / name
+    path.write_bytes(content)
+    dialog = make_dialog(path)
+
+    shown = dialog.error_label.text()
+    assert dialog.error_label.isVisibleTo(dialog)
+    assert "This file cannot be opened" in shown and "with these settings" not in shown
+    assert words in shown
+    assert "CSV (.csv)" in shown and "Workbook (.xlsx, .xlsm)" in shown and "(.ods)" in shown
+    assert "not a table" in dialog.preview_caption.text()
+    assert not dialog.ok_button.isEnabled()
+    save_screenshot(dialog, f"import_dialog_not_a_table_{path.suffix[1:]}", tmp_path)

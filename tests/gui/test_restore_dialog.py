@@ -16,7 +16,7 @@ import pandas as pd
 import pytest
 from dialog_helpers import choose, save_screenshot
 from PySide6.QtCore import Qt
-from PySide6.QtWidgets import QDialog, QFileDialog
+from PySide6.QtWidgets import QDialog
 
 from scalewright import io as swio
 from scalewright import tasks
@@ -210,9 +210,9 @@ def test_parameters_from_a_scaled_workbook(qtbot, make_dialog, project, tmp_path
     assert "choose a project file or a scaled workbook" in dialog.project_label.text()
     assert not dialog.can_save()
 
-    monkeypatch.setattr(
-        QFileDialog, "getOpenFileName", staticmethod(lambda *a, **k: (str(workbook), ""))
-    )
+    from scalewright.gui import file_dialogs
+
+    monkeypatch.setattr(file_dialogs, "open_file_name", lambda *a, **k: (str(workbook), ""))
     with qtbot.waitSignal(dialog.projectChanged, timeout=10000):
         qtbot.mouseClick(dialog.project_button, Qt.MouseButton.LeftButton)
     assert "yield_kg (z-score)" in dialog.project_label.text()

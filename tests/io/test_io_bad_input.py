@@ -44,13 +44,23 @@ def test_binary_garbage(corpus):
 def test_workbook_saved_under_a_csv_name(tmp_path, awkward_xlsx):
     path = tmp_path / "really_a_workbook.csv"
     path.write_bytes(awkward_xlsx.read_bytes())
-    expect(path, "this is not a text table (it contains binary data)")
+    expect(
+        path,
+        "this is a workbook saved under a '.csv' name; Scalewright opens tables: CSV (.csv), "
+        "TSV (.tsv), delimited text (.txt), Workbook (.xlsx, .xlsm), older workbook (.xls) "
+        "and OpenDocument spreadsheet (.ods). Rename it to end in .xlsx to open it",
+    )
 
 
 def test_wrong_extension(tmp_path):
     path = tmp_path / "report.pdf"
     path.write_bytes(b"%PDF-1.4 invented")
-    expect(path, "cannot read '.pdf' files; open one of .csv, .tsv, .txt, .xlsx, .xlsm, .xls, .ods")
+    expect(
+        path,
+        "this type of file ('.pdf', a PDF document) is not supported; Scalewright opens "
+        "tables: CSV (.csv), TSV (.tsv), delimited text (.txt), Workbook (.xlsx, .xlsm), "
+        "older workbook (.xls) and OpenDocument spreadsheet (.ods)",
+    )
 
 
 def test_ragged_row_with_too_many_fields(corpus):

@@ -70,9 +70,7 @@ def read_as_text(monkeypatch):
         with monkeypatch.context() as m:
             m.setattr(csv_reader, "_float_columns", lambda *args: set())
             raw = path.read_bytes()
-            return csv_reader._read_text(
-                path, options or ReadOptions(), raw, None, False, None, None
-            )
+            return csv_reader._read_whole(path, options or ReadOptions(), raw)
 
     return read
 

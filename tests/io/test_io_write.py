@@ -152,7 +152,11 @@ def test_workbook_cell_types_and_layout(tmp_path):
 def test_text_longer_than_a_cell_is_refused_and_nothing_left(tmp_path):
     frame = pd.DataFrame({"t": pd.Series(["ok", "y" * 40_000], dtype="str")})
     target = tmp_path / "long.xlsx"
-    with pytest.raises(WriteError, match=r"column 't' row 3 has more than 32,767 characters"):
+    with pytest.raises(
+        WriteError,
+        match=r"column 't', row 2 of the data, holds 40,000 characters; "
+        r"a workbook cell holds at most 32,767, so write a \.csv or \.tsv file instead",
+    ):
         write_table(target, frame, ["t"])
     assert os.listdir(tmp_path) == []
 

@@ -7,6 +7,7 @@ from dataclasses import asdict, dataclass
 import numpy as np
 
 from . import numerics
+from .number_text import number_text
 
 
 @dataclass(frozen=True)
@@ -94,12 +95,12 @@ def suggest(s: ColumnSummary) -> Suggestion:
             return Suggestion(
                 "boxcox",
                 {"standardize": True},
-                f"strongly {side}-skewed (skewness {s.skewness:.1f}) and all positive: Box-Cox",
+                f"strongly {side}-skewed (skewness {number_text(s.skewness, '.1f')}) and all positive: Box-Cox",
             )
         return Suggestion(
             "yeojohnson",
             {"standardize": True},
-            f"strongly {side}-skewed (skewness {s.skewness:.1f}) with zeros or negatives: Yeo-Johnson",
+            f"strongly {side}-skewed (skewness {number_text(s.skewness, '.1f')}) with zeros or negatives: Yeo-Johnson",
         )
     if s.n_beyond_fences > MANY_OUTLIERS * s.count:
         return Suggestion(
@@ -110,5 +111,5 @@ def suggest(s: ColumnSummary) -> Suggestion:
     return Suggestion(
         "zscore",
         {},
-        f"roughly symmetric (skewness {s.skewness:.1f}) with few extreme values: z-score",
+        f"roughly symmetric (skewness {number_text(s.skewness, '.1f')}) with few extreme values: z-score",
     )

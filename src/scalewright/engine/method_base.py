@@ -24,6 +24,7 @@ from typing import Any
 import numpy as np
 
 from ..errors import OptionError, ScalewrightError
+from .number_text import number_text
 
 _YES = {"yes", "true", "1", "on"}
 _NO = {"no", "false", "0", "off"}
@@ -53,7 +54,7 @@ class OptionSpec:
 class ParamSpec:
     """One fitted parameter: stored name, JSON type, plain words, and when it is present.
 
-    ``kind`` is "number", "int", "text" or "bool". ``label`` is what a person reads
+    ``kind`` is "number", "numbers" (a list), "int", "text" or "bool". ``label`` is what a person reads
     ("first quartile"); ``says`` turns a value into a whole phrase where a label and a
     number would read badly (``ddof`` 1 -> "sample sd (divides by n - 1)").
     ``present`` decides from the other parameters whether this one is stored (the power
@@ -126,14 +127,13 @@ class ValueSummary:
 
 
 def format_number(value: float, digits: int = 10) -> str:
-    """A number for people: ``digits`` significant digits, never a negative zero."""
+    """A parameter for people: ``digits`` significant digits (``number_text``: never a
+    negative zero), yes/no for switches."""
     if isinstance(value, bool):
         return "yes" if value else "no"
     if isinstance(value, int):
         return str(value)
-    if value == 0:
-        return "0"
-    return f"{value:.{digits}g}"
+    return number_text(value, f".{digits}g")
 
 
 class Method:
@@ -346,32 +346,31 @@ class LinearMethod(Method):
         x, out = _begin(x, out)
         if s.divide == 0:
             return _keep_nonfinite(x, s.add, out)
-        if s.subtract != 0.0:
-            np.subtract(x, s.subtract, out=out)
-        else:
-            np.copyto(out, x)
-        if s.divide != 1.0:
-            out /= s.divide
-        if s.multiply != 1.0:
-            out *= s.multiply
-        if s.add != 0.0:
-            out += s.add
-        return out
+        ops = [(np.subtract, s.subtract, 0.0), (np.divide, s.divide, 1.0)]
+        ops += [(np.multiply, s.multiply, 1.0), (np.add, s.add, 0.0)]
+        return _in_steps(x, out, ops)
 
     def inverse(self, y, params, out=None):
         s = self.steps(params)
         y, out = _begin(y, out)
-        if s.add != 0.0:
-            np.subtract(y, s.add, out=out)
-        else:
-            np.copyto(out, y)
-        if s.multiply != 1.0:
-            out /= s.multiply
-        if s.divide != 1.0:
-            out *= s.divide  # a divisor of 0 (a constant column) turns every value back to it
-        if s.subtract != 0.0:
-            out += s.subtract
-        return out
+        # A divisor of 0 (a constant column) turns every value back to ``subtract``.
+        ops = [(np.subtract, s.add, 0.0), (np.divide, s.multiply, 1.0)]
+        ops += [(np.multiply, s.divide, 1.0), (np.add, s.subtract, 0.0)]
+        return _in_steps(y, out, ops)
+
+
+def _in_steps(x: np.ndarray, out: np.ndarray, ops) -> np.ndarray:
+    """Apply ``(ufunc, constant, identity)`` steps in order, skipping a step whose constant
+    is its identity; the first step reads ``x``, the rest work in place (one pass each)."""
+    source = x
+    for ufunc, constant, identity in ops:
+        if constant == identity:
+            continue
+        ufunc(source, constant, out=out)
+        source = out
+    if source is x:
+        np.copyto(out, x)
+    return out
 
     def sql_forward(self, x, params):
         from . import sql_terms as S

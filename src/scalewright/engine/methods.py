@@ -12,7 +12,7 @@ from typing import Any
 import numpy as np
 
 from ..errors import OptionError
-from . import numerics, power
+from . import numerics, power, quantile
 from .method_base import (
     FitError,
     FitResult,
@@ -878,6 +878,7 @@ METHODS: dict[str, Method] = {
         Logarithm(),
         BoxCox(),
         YeoJohnson(),
+        quantile.Quantile(),
     )
 }
 

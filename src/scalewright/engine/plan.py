@@ -19,6 +19,7 @@ import pandas as pd
 from ..errors import ColumnError, ScalewrightError
 from .method_base import FitResult, Method
 from .methods import get_method
+from .number_text import number_text
 
 
 @dataclass(frozen=True)
@@ -495,7 +496,7 @@ def _run(
         if report.n_outside and not clip:
             report.warnings.append(
                 f"{report.n_below} values below and {report.n_above} above the fitted range "
-                f"[{fc.pooled.min!r}, {fc.pooled.max!r}]"
+                f"[{number_text(fc.pooled.min, 'r')}, {number_text(fc.pooled.max, 'r')}]"
                 if not fc.groups
                 else f"{report.n_below} values below and {report.n_above} above their group's fitted range"
             )
@@ -528,17 +529,45 @@ def _with_columns(data: pd.DataFrame, new_columns: Mapping[str, np.ndarray]) -> 
 
 
 def apply(
-    data: pd.DataFrame, plan: FittedPlan, *, clip: bool = False
+    data: pd.DataFrame,
+    plan: FittedPlan,
+    *,
+    clip: bool = False,
+    mapping: Mapping[str, str] | None = None,
 ) -> tuple[pd.DataFrame, list[ColumnReport]]:
     """Scale every fitted column of ``data``; other columns are returned untouched.
 
+    ``mapping`` pairs a column of ``data`` with the fitted column whose parameters scale it
+    (for example ``{"yield_2026": "yield_kg"}``); a fitted column named in it is taken from
+    its paired column(s) only, the others from the column of the same name.
     Values outside the range the parameters were fitted on are counted per column, and
     with ``clip`` moved to the nearest end of that range first.
     """
-    missing = [c for c in plan.columns if c not in data.columns]
-    if missing:
-        raise ColumnError(missing[0], "was fitted in the project but is not in this table")
-    return _run(data, plan, [(c, c) for c in plan.columns], restoring=False, clip=clip)
+    mapping = dict(mapping or {})
+    for target, source in mapping.items():
+        if target not in data.columns:
+            raise ColumnError(target, "is not in this table")
+        if source not in plan.columns:
+            raise ColumnError(source, "has no fitted parameters in the project")
+    paired = set(mapping.values())
+    pairs = []
+    for c in plan.columns:
+        if c in paired:
+            pairs += [(target, c) for target, source in mapping.items() if source == c]
+        elif c in data.columns:
+            pairs.append((c, c))
+        else:
+            raise ColumnError(c, "was fitted in the project but is not in this table")
+    seen: dict[str, str] = {}
+    for target, source in pairs:
+        if target in seen:
+            raise ColumnError(
+                target,
+                f"would be scaled twice (with the parameters of '{seen[target]}' and of "
+                f"'{source}'); pair each column once",
+            )
+        seen[target] = source
+    return _run(data, plan, pairs, restoring=False, clip=clip)
 
 
 def restore(

@@ -10,12 +10,14 @@ evaluation of the likelihood then costs one ``expm1`` and one variance over the 
 is what makes this several times faster than calling scipy's fitter (which takes the
 logarithms again on every evaluation). The optimiser (Brent's method) is scipy's, with the
 same bracket and tolerance scipy uses, so the lambdas agree.
+
+scipy is imported inside the fitting functions, not here: it costs most of a second at
+start-up, and only fitting a lambda needs it (applying and restoring do not).
 """
 
 from __future__ import annotations
 
 import numpy as np
-from scipy import optimize, special
 
 _BRENT_TOL = 1.48e-8  # scipy.optimize.brent's default xtol
 
@@ -84,6 +86,8 @@ def boxcox_lambda(x: np.ndarray, report_constrained: bool = False):
     most extreme value beyond ``BOXCOX_YMAX`` in size, lambda is moved to the value that
     sends it exactly there. With ``report_constrained`` the result is (lambda, constrained).
     """
+    from scipy import optimize
+
     like = BoxCoxLikelihood(x)
     # scipy.stats.boxcox_normmax(method="mle") uses optimize.brent with brack=(-2, 2).
     with np.errstate(all="ignore"):  # brent's arithmetic on infinite llf values warns
@@ -103,6 +107,8 @@ def constrain_boxcox_lambda(lam: float, xmin: float, xmax: float) -> tuple[float
     else:
         extreme = xmax if _boxcox_scalar(xmax, lam) > abs(_boxcox_scalar(xmin, lam)) else xmin
     if abs(_boxcox_scalar(extreme, lam)) > BOXCOX_YMAX:
+        from scipy import special
+
         y = BOXCOX_YMAX * np.sign(extreme - 1)
         # Solve boxcox(extreme, lam) = y for lam with the Lambert W function (as scipy does).
         w = special.lambertw(-(extreme ** (-1 / y)) * np.log(extreme) / y, k=-1)
@@ -112,6 +118,8 @@ def constrain_boxcox_lambda(lam: float, xmin: float, xmax: float) -> tuple[float
 
 
 def _boxcox_scalar(x: float, lam: float) -> float:
+    from scipy import special
+
     with np.errstate(over="ignore"):
         return float(special.boxcox(x, lam))
 
@@ -180,6 +188,8 @@ def yeojohnson_lambda(x: np.ndarray) -> float:
         # log1p(20 * max|x|) is 0: the values are so close to 0 that every lambda gives
         # the same transform to working precision (scipy's fitter raises here).
         return 1.0
+    from scipy import optimize
+
     like = YeoJohnsonLikelihood(x)
     with np.errstate(all="ignore"):
         return float(optimize.fminbound(like.neg_llf, lb, ub, xtol=_BRENT_TOL))

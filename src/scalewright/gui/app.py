@@ -31,14 +31,26 @@ def make_app(argv: list[str] | None = None):
     app.setApplicationName(APPLICATION)
     app.setApplicationDisplayName(APPLICATION)
     app.setWindowIcon(app_icon())
-    theme.apply_theme(app)
-    theme.configure_plots()
+    # Once per application: setting a style sheet again re-polishes every widget alive,
+    # which crashed (SIGSEGV) when widgets of an earlier window were half torn down (seen
+    # in the test suite, where each window fixture calls make_app).
+    if not app.property("scalewright_themed"):
+        theme.apply_theme(app)
+        theme.configure_plots()
+        app.setProperty("scalewright_themed", True)
     return app
 
 
-def main(path: str | None = None) -> int:
-    """Open the window (on a data file or a .swproj if given) and run until it is closed."""
+def main(path: str | None = None, *, check_and_quit: bool = False) -> int:
+    """Open the window (on a data file or a .swproj if given) and run until it is closed.
+
+    With ``check_and_quit``, open the file, print what was read and quit (startup_check.py).
+    """
     app = make_app()
+    if check_and_quit:
+        from .startup_check import run_check
+
+        return run_check(app, path)
     from .main_window import MainWindow
 
     window = MainWindow()

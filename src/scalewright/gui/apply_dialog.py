@@ -28,6 +28,7 @@ from PySide6.QtWidgets import (
 
 from .. import engine, tasks
 from .. import io as swio
+from ..engine.number_text import number_text
 from . import theme
 from .widgets import MUTED_STYLE, escape_html, plural, set_message
 from .writing_dialog import WritingDialog, saved_parameters
@@ -153,11 +154,10 @@ class ApplyDialog(WritingDialog):
 
     def _reader(self, path: Path, sheet: str | None):
         plan = self._project.plan
+        reading = tasks.reading_for(self._project, swio.ReadOptions(sheet=sheet))
 
         def read(progress, cancelled):
-            table = swio.read_table(
-                path, swio.ReadOptions(sheet=sheet), progress=progress, cancelled=cancelled
-            )
+            table = swio.read_table(path, reading, progress=progress, cancelled=cancelled)
             return table, preview_apply(table, plan)
 
         return read
@@ -206,7 +206,7 @@ class ApplyDialog(WritingDialog):
                 rep = self._preview_reports[column]
                 outside_total += rep.n_outside
                 range_tip = (
-                    f"Fitted range: {fc.pooled.min:.10g} to {fc.pooled.max:.10g}"
+                    f"Fitted range: {number_text(fc.pooled.min)} to {number_text(fc.pooled.max)}"
                     if not fc.groups
                     else "Each group has its own fitted range."
                 )

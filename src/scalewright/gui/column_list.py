@@ -7,8 +7,8 @@ from PySide6.QtGui import QBrush, QColor
 from PySide6.QtWidgets import QAbstractItemView, QHeaderView, QTableView, QWidget
 
 from ..engine import get_method
+from ..session import Session
 from . import theme
-from .state import Session
 
 NAME, KIND, METHOD, WARN = range(4)
 HEADERS = ("Column", "Kind", "Scale with", "")

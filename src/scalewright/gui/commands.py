@@ -13,7 +13,7 @@ from PySide6.QtGui import QUndoCommand, QUndoStack
 
 from ..engine import ColumnChoice, FitSettings, get_method
 from ..errors import ScalewrightError
-from .state import Session, _choice_key
+from ..session import Session, choice_key
 
 SET_CHOICES_ID = 4101
 SET_SETTINGS_ID = 4102
@@ -60,7 +60,7 @@ class SetChoices(QUndoCommand):
         if any(other.new[k].method != self.new[k].method for k in self.new):
             return False
         self.new = dict(other.new)
-        if all(_choice_key(self.new[k]) == _choice_key(self.old[k]) for k in self.new):
+        if all(choice_key(self.new[k]) == choice_key(self.old[k]) for k in self.new):
             self.setObsolete(True)  # typed back to where it was: nothing to undo
         return True
 
@@ -97,7 +97,7 @@ def push_choices(
         choice = choice.normalized()
         if choice.method != "none" and not session.scalable(label):
             raise ScalewrightError(f"'{label}' is {session.why_not_scalable(label)}")
-        if _choice_key(choice) != _choice_key(session.choice(label)):
+        if choice_key(choice) != choice_key(session.choice(label)):
             changed[label] = choice
     if not changed:
         return False

@@ -7,7 +7,6 @@ from pathlib import Path
 from PySide6.QtCore import Signal
 from PySide6.QtWidgets import (
     QComboBox,
-    QFileDialog,
     QHBoxLayout,
     QLabel,
     QLineEdit,
@@ -17,10 +16,10 @@ from PySide6.QtWidgets import (
 
 from .. import io as swio
 from ..io.options import WORKBOOK_SUFFIXES
-from . import theme
+from . import file_dialogs, theme
 
 _TYPE_NAMES = {
-    ".xlsx": "Excel workbook",
+    ".xlsx": "Workbook",
     ".csv": "Comma-separated text",
     ".tsv": "Tab-separated text",
 }
@@ -101,7 +100,7 @@ class FileRow(QWidget):
 
     def browse(self) -> None:
         start = str(self.path().parent) if self.path() else ""
-        name, _ = QFileDialog.getOpenFileName(self, self._caption, start, READ_FILTER)
+        name, _ = file_dialogs.open_file_name(self, self._caption, start, READ_FILTER)
         if name:
             self.set_path(name)
 
@@ -163,7 +162,7 @@ class OutputRow(QWidget):
 
     def browse(self) -> None:
         start = str(self.path() or self.suggested_folder or "")
-        name, chosen = QFileDialog.getSaveFileName(self, "Save as", start, WRITE_FILTER)
+        name, chosen = file_dialogs.save_file_name(self, "Save as", start, WRITE_FILTER)
         if not name:
             return
         self.set_path(with_chosen_type(name, chosen))

@@ -17,8 +17,10 @@ from PySide6.QtCore import QPointF, Qt, QTimer
 from PySide6.QtWidgets import QGridLayout, QHBoxLayout, QLabel, QPushButton, QVBoxLayout, QWidget
 
 from ..engine import get_method
+from ..engine.histogram import COUNT_PER_UNIT, bar_heights
+from ..engine.number_text import number_text
+from ..session import Figures, RangeInfo, Session
 from . import theme
-from .state import Figures, RangeInfo, Session
 
 
 def fmt(v: float) -> str:
@@ -26,16 +28,16 @@ def fmt(v: float) -> str:
     if v is None or (isinstance(v, float) and math.isnan(v)):
         return "–"
     if isinstance(v, float) and math.isinf(v):
-        return "∞" if v > 0 else "−∞"
+        return "∞" if v > 0 else "-∞"
     v = float(v)
     if v == 0:
         return "0"
     if abs(v) < 1e-12:  # rounding noise around zero, e.g. the mean of z-scores
         return "0"
-    text = f"{v:.4g}"
+    text = number_text(v, ".4g")
     if "e" not in text and abs(v) >= 1000:
-        text = f"{v:,.0f}"
-    return text.replace("-", "\u2212")
+        text = number_text(v, ",.0f")
+    return text  # the ASCII minus, as everywhere (number_text)
 
 
 FIGURE_LINES = 4
@@ -66,6 +68,7 @@ class _Side:
         self.plot.setMouseEnabled(x=False, y=False)
         self.plot.showGrid(x=False, y=True, alpha=0.15)
         self.plot.setLabel("left", "count")
+        self._left_title = "count"
         self.title = title
         self.colour = colour
         self.bars = pg.BarGraphItem(
@@ -89,6 +92,7 @@ class _Side:
         self.x0 = np.zeros(0)
         self.x1 = np.zeros(0)
         self.counts = np.zeros(0)
+        self.heights = self.counts  # as drawn: the counts, or counts per unit of width
         self.valid = np.zeros(0, dtype=bool)
         self.figures = QLabel("")
         self.figures.setProperty("role", "hint")
@@ -113,8 +117,13 @@ class _Side:
         x0, x1 = edges[:-1], edges[1:]
         valid = np.isfinite(x0) & np.isfinite(x1)
         self.x0, self.x1, self.counts, self.valid = x0, x1, counts, valid
+        self.heights, per_unit = bar_heights(edges, counts, valid)
+        left = COUNT_PER_UNIT if per_unit else "count"
+        if left != self._left_title:  # set only when it changes: setting it lays out anew
+            self._left_title = left
+            self.plot.setLabel("left", left)
         if valid.any():
-            self.bars.setOpts(x0=x0[valid], x1=x1[valid], height=counts[valid])
+            self.bars.setOpts(x0=x0[valid], x1=x1[valid], height=self.heights[valid])
             self.bars.setVisible(True)
             self.plot.enableAutoRange()
         else:
@@ -134,7 +143,7 @@ class _Side:
         if i is None or not (0 <= i < len(self.valid)) or not self.valid[i]:
             self.hover.setVisible(False)
             return
-        self.hover.setOpts(x0=[self.x0[i]], x1=[self.x1[i]], height=[self.counts[i]])
+        self.hover.setOpts(x0=[self.x0[i]], x1=[self.x1[i]], height=[self.heights[i]])
         self.hover.setVisible(True)
 
     def hovered_bar(self) -> tuple[float, float, float] | None:
@@ -255,6 +264,9 @@ class HistogramPanel(QWidget):
         self.original_title.setText(f"<b style='color:{theme.ORIGINAL}'>\u25a0</b> Original units")
         self.original.figures.setText(figures_text(s.figures(label)))
         self.original.set_axis_title(s.header(label))
+        # No readout of another column's bar or range survives the switch.
+        self.range = None
+        self.info.setText(" ")
         self._draw_scaled()
         if self.range_button.isChecked():
             self._reset_range()

@@ -30,6 +30,7 @@ from PySide6.QtWidgets import (
 )
 
 from .. import io as swio
+from ..errors import UnsupportedFile
 from ..io import ReadOptions
 from ..io.options import WORKBOOK_SUFFIXES
 from .frame_view import FrameModel, make_preview_view
@@ -334,6 +335,9 @@ class ImportDialog(QDialog):
         try:
             wanted = ReadOptions(**self._fixed)
             detection = swio.detect(self._path, wanted, preview_rows=PREVIEW_ROWS)
+        except UnsupportedFile as err:  # no setting will make it a table
+            self._show_error(describe_error(err), unsupported=True)
+            return
         except Exception as err:  # every failure is shown, none may crash
             self._show_error(describe_error(err))
             return
@@ -346,14 +350,20 @@ class ImportDialog(QDialog):
         self.ok_button.setEnabled(True)
         self.optionsChanged.emit(detection.options)
 
-    def _show_error(self, text: str) -> None:
+    def _show_error(self, text: str, *, unsupported: bool = False) -> None:
         self._detection = None
         self._error = text
-        self.error_label.setText(f"⚠  The file cannot be read with these settings: {text}")
-        self.error_label.setToolTip("Change the setting named here, or press Guess again.")
+        if unsupported:
+            self.error_label.setText(f"⚠  This file cannot be opened: {text}")
+            self.error_label.setToolTip("Choose a table saved in one of the types listed.")
+            caption = "Nothing to preview: this file is not a table Scalewright can read."
+        else:
+            self.error_label.setText(f"⚠  The file cannot be read with these settings: {text}")
+            self.error_label.setToolTip("Change the setting named here, or press Guess again.")
+            caption = "Nothing to preview until the settings fit the file."
         self.error_label.show()
         self.preview_model.set_frame(None)
-        self.preview_caption.setText("Nothing to preview until the settings fit the file.")
+        self.preview_caption.setText(caption)
         self.ok_button.setEnabled(False)
 
     def _show_controls(self, detection) -> None:

@@ -12,15 +12,14 @@ Questions to the user go through ``ask_open_path``, ``ask_save_path`` and
 
 from __future__ import annotations
 
-import dataclasses
 from pathlib import Path
 from typing import Any
 
 from PySide6.QtCore import QByteArray, QSettings, Qt, QTimer, Signal
 from PySide6.QtGui import QAction, QCloseEvent, QIcon, QKeySequence, QUndoStack
 from PySide6.QtWidgets import (
+    QApplication,
     QDockWidget,
-    QFileDialog,
     QLabel,
     QMainWindow,
     QMessageBox,
@@ -32,12 +31,14 @@ from PySide6.QtWidgets import (
     QWidget,
 )
 
-from .. import __version__, tasks
 from .. import io as swio
+from .. import projects, tasks
 from ..engine import METHODS
 from ..errors import Cancelled, ScalewrightError
-from ..project import load_project, locate_source, save_project
-from . import commands, theme
+from ..project import load_project, save_project
+from ..projects import PROJECT_SUFFIX
+from ..session import Session, column_facts
+from . import commands, file_dialogs, report_action, theme
 from .apply_dialog import ApplyDialog
 from .column_list import ColumnList
 from .errors import show_error
@@ -48,14 +49,12 @@ from .jobs import JobRunner, QuickCalls
 from .method_panel import MethodPanel
 from .preview import PreviewPanel
 from .restore_dialog import RestoreDialog
-from .state import Session, column_facts
 
-PROJECT_SUFFIX = ".swproj"
 READ_SUFFIXES = tuple(swio.SUPPORTED_READ)
 DATA_FILTER = READ_FILTER
 PROJECT_FILTER = f"Scalewright projects (*{PROJECT_SUFFIX})"
 PROJECT_OR_WORKBOOK_FILTER = f"Projects or scaled workbooks (*{PROJECT_SUFFIX} *.xlsx)"
-EXPORT_FILTER = WRITE_FILTER.replace("Excel workbook (", "Excel workbook with parameters (")
+EXPORT_FILTER = WRITE_FILTER.replace("Workbook (", "Workbook with parameters (")
 MAX_RECENT = 8
 
 
@@ -72,7 +71,7 @@ class MainWindow(QMainWindow):
     ) -> None:
         super().__init__(parent)
         self.session = session or Session()
-        # Slow fits of large columns run off the interface thread (see state.py).
+        # Slow fits of large columns run off the interface thread (see session/fits.py).
         self.fits = QuickCalls(self)
         if self.session.fit_runner is None:
             self.session.fit_runner = self.fits
@@ -80,14 +79,11 @@ class MainWindow(QMainWindow):
         self.stack = QUndoStack(self)
         self.last_message: QMessageBox | None = None
         self.import_dialog = None
-        # (saved project, its fitted columns) while saved parameters the user kept after
-        # the data file changed are in use; see _show_project.
-        self._kept = None
         self.apply_dialog = None
         self.restore_dialog = None
         self.setAcceptDrops(True)
         self.setWindowIcon(app_icon())
-        self.resize(1360, 860)
+        self._fit_to_screen(1360, 860)
 
         self.columns = ColumnList(self.session)
         self.method_panel = MethodPanel(self.session, self.stack)
@@ -130,7 +126,7 @@ class MainWindow(QMainWindow):
         self.main_split.setStretchFactor(0, 0)
         self.main_split.setStretchFactor(1, 1)
         self.main_split.setStretchFactor(2, 0)
-        self.main_split.setSizes([400, 680, 340])
+        self.main_split.setSizes([320, 700, 330])
         self.main_split.setChildrenCollapsible(False)
         self.setCentralWidget(self.main_split)
 
@@ -141,6 +137,8 @@ class MainWindow(QMainWindow):
         view.setToolTip("Every change to a choice; click a line to go back to it")
         self.history.setWidget(view)
         self.addDockWidget(Qt.DockWidgetArea.RightDockWidgetArea, self.history)
+        # Narrow when shown, so that opening it leaves the histograms room for their titles.
+        self.resizeDocks([self.history], [200], Qt.Orientation.Horizontal)
         self.history.hide()
 
         self.jobs = JobRunner(self)
@@ -226,6 +224,12 @@ class MainWindow(QMainWindow):
             "Turn scaled values (for example a model's predictions) back into original units",
             sp.SP_BrowserReload,
         )
+        self.act_report = self._action(
+            "Report…",
+            lambda: report_action.report_from_window(self),
+            None,
+            "Write a report of the project (web page or PDF) for colleagues and auditors",
+        )
         self.act_quit = self._action("Quit", self.close, QKeySequence.StandardKey.Quit)
         self.act_undo = self.stack.createUndoAction(self, "Undo")
         self.act_undo.setShortcut(QKeySequence.StandardKey.Undo)
@@ -306,7 +310,7 @@ class MainWindow(QMainWindow):
         m.addSeparator()
         m.addActions([self.act_save, self.act_save_as])
         m.addSeparator()
-        m.addActions([self.act_export, self.act_apply, self.act_restore])
+        m.addActions([self.act_export, self.act_apply, self.act_restore, self.act_report])
         m.addSeparator()
         m.addAction(self.act_quit)
         m = mb.addMenu("&Edit")
@@ -388,8 +392,23 @@ class MainWindow(QMainWindow):
             a.setEnabled(has and idle and fitted)
         for a in (self.act_suggest, self.act_leave, self.act_select_all):
             a.setEnabled(has and idle)
-        for a in (self.act_apply, self.act_restore):
+        for a in (self.act_apply, self.act_restore, self.act_report):
             a.setEnabled(idle and fitted)
+
+    def _ready_to_write(self, refusal: str = "", *, wait: bool = False) -> bool:
+        """The one check before saving, exporting or applying: every chosen column is
+        fitted (``wait`` lets background fits land first; otherwise they refuse quietly),
+        and none failed (the reason is shown after ``refusal``)."""
+        if self.session.fits_pending:
+            if not wait:
+                self._still_fitting()
+                return False
+            self._wait_for_fits()
+        problem = projects.why_not_ready(self.session)
+        if problem is not None:
+            self.show_message(refusal + problem)
+            return False
+        return True
 
     def _still_fitting(self) -> bool:
         """True (and says so) while a column is still being fitted in the background."""
@@ -409,12 +428,12 @@ class MainWindow(QMainWindow):
     # ================================================================== questions (replaced in tests)
 
     def ask_open_path(self, title: str, filter_: str) -> str | None:
-        path, _ = QFileDialog.getOpenFileName(self, title, self._last_dir(), filter_)
+        path, _ = file_dialogs.open_file_name(self, title, self._last_dir(), filter_)
         return path or None
 
     def ask_save_path(self, title: str, filter_: str, suggested: str = "") -> str | None:
         start = str(Path(self._last_dir()) / suggested) if suggested else self._last_dir()
-        path, chosen = QFileDialog.getSaveFileName(self, title, start, filter_)
+        path, chosen = file_dialogs.save_file_name(self, title, start, filter_)
         if path and any(f"*{s}" in chosen for s in WRITE_TYPES):
             path = str(with_chosen_type(path, chosen))  # the type chosen sets the ending
         return path or None
@@ -458,7 +477,7 @@ class MainWindow(QMainWindow):
     def open_path(self, path: str | Path) -> None:
         """Open a data file (through the import dialog) or a project, by its extension."""
         path = Path(path)
-        if path.suffix.lower() == PROJECT_SUFFIX:
+        if projects.is_project_file(path):
             self.open_project(path)
         else:
             self.open_import_dialog(path)
@@ -517,7 +536,6 @@ class MainWindow(QMainWindow):
                     return
             else:
                 self.session.load_table(table, facts=facts)
-                self._kept = None
                 self.stack.clear()
                 self.stack.setClean()
             source = Path(table.source)
@@ -591,10 +609,7 @@ class MainWindow(QMainWindow):
         """Read the project's data file (``chosen`` by the user when it was not found)."""
 
         def find():
-            if chosen is None:
-                check = locate_source(project, path)
-            else:  # compared with the saved size and SHA-256 like the file at its old place
-                check = locate_source(dataclasses.replace(project, source=chosen), None)
+            check = projects.find_source(project, path, chosen)
             return check.path, check
 
         def show(table, facts, check) -> bool:
@@ -610,69 +625,31 @@ class MainWindow(QMainWindow):
         return self.load_data(project.source or path, project.read_options, find=find, show=show)
 
     def _show_project(self, path: Path, project, check, table, facts) -> bool:
-        source = Path(table.source)
-        missing = [c for c in project.choices if c not in table.data.columns]
-        keep = project.plan is not None and (
-            not check.changed or self.ask_keep_saved_parameters(source.name)
-        )
+        opening = projects.open_on(project, check, table, self.ask_keep_saved_parameters)
         try:
             self.session.load_table(
                 table,
-                choices=project.choices,
-                settings=project.settings,
+                choices=opening.choices,
+                settings=opening.settings,
                 project_path=path,
-                fitted=project.plan.columns if keep else None,
+                fitted=opening.fitted,
+                fitted_on=opening.fitted_on,
                 facts=facts,
             )
         except ScalewrightError as err:
             self.show_message(err)
             return False
-        # Parameters kept from a file that has changed since are recorded as fitted on
-        # that file (its size and SHA-256, its number of rows), not on this one.
-        self._kept = (project, dict(project.plan.columns)) if keep and check.changed else None
         self.add_recent(path)
-        notes = []
-        if check.changed:
-            notes.append(
-                "the data file has changed since the project was saved; "
-                + (
-                    "the saved parameters were kept"
-                    if keep
-                    else "the parameters were fitted again on the current data"
-                )
-            )
-        if missing:
-            notes.append("not in the data any more: " + ", ".join(missing))
         self.stack.clear()
         self.stack.setClean()
-        if check.changed or source != project.source:
+        if opening.dirty:
             self.session.set_dirty(True)  # changed or moved: the project should be saved
-        if notes:
-            self.show_message("Opened the project; " + "; ".join(notes) + ".")
-        self.notify(f"Opened project {path.name} with {source.name}")
+        if opening.message:
+            self.show_message(opening.message)
+        self.notify(f"Opened project {path.name} with {Path(table.source).name}")
         return True
 
     # ================================================================== saving and exporting
-
-    def _project_job(self):
-        """A function recording the current choices and their fitted values as a Project.
-
-        The session's fitted columns are used as they are (no fitting again), so saved
-        parameters the user chose to keep are what gets written.
-        """
-        table = self.session.table
-        choices = self.session.chosen()
-        settings = self.session.settings
-        plan = self.session.plan()  # cached fits; callers checked problems() first
-        kept = self._kept
-        if kept is not None and any(plan.columns.get(label) is fc for label, fc in kept[1].items()):
-            saved = kept[0]
-            plan = dataclasses.replace(plan, n_rows=saved.plan.n_rows)
-            fingerprint = (saved.source_size, saved.source_sha256)
-            return lambda: tasks.fit_project(
-                table, choices, settings, plan=plan, fingerprint=fingerprint
-            )
-        return lambda: tasks.fit_project(table, choices, settings, plan=plan)
 
     def save(self, *, wait: bool = False) -> bool:
         if self.session.project_path is None:
@@ -682,31 +659,20 @@ class MainWindow(QMainWindow):
     def save_as(self, *, wait: bool = False) -> bool:
         if self.session.table is None:
             return False
-        suggested = Path(self.session.table.source).with_suffix(PROJECT_SUFFIX).name
+        suggested = projects.suggested_project_name(self.session.table.source)
         path = self.ask_save_path("Save project", PROJECT_FILTER, suggested)
         if not path:
             return False
-        path = Path(path)
-        if path.suffix.lower() != PROJECT_SUFFIX:
-            path = path.with_name(path.name + PROJECT_SUFFIX)
-        return self.save_project(path, wait=wait)
+        return self.save_project(projects.with_project_suffix(path), wait=wait)
 
     def save_project(self, path: str | Path, *, wait: bool = False) -> bool:
         """Fit the choices and write the project file (in the background)."""
         if self.session.table is None:
             return False
-        if self.session.fits_pending:
-            if not wait:
-                self._still_fitting()
-                return False
-            self._wait_for_fits()
-        problems = self.session.problems()
-        if problems:
-            reason = next(iter(problems.values()))
-            self.show_message(f"The project was not saved: {reason}")
+        if not self._ready_to_write("The project was not saved: ", wait=wait):
             return False
         path = Path(path)
-        make = self._project_job()
+        make = projects.project_builder(self.session)
         clean_index = self.stack.index()
         result = {"ok": False}
 
@@ -759,17 +725,13 @@ class MainWindow(QMainWindow):
 
     def export(self, target: str | Path):
         """Write the scaled table (workbook with parameters, or CSV/TSV) in the background."""
-        if self.session.table is None or self._still_fitting():
-            return None
-        problems = self.session.problems()
-        if problems:
-            self.show_message(f"Nothing was exported: {next(iter(problems.values()))}")
+        if self.session.table is None or not self._ready_to_write("Nothing was exported: "):
             return None
         target = Path(target)
         if not target.suffix:
             target = target.with_suffix(".xlsx")
         table = self.session.table
-        make = self._project_job()
+        make = projects.project_builder(self.session)
 
         def work(progress, cancelled):
             project = make()
@@ -796,13 +758,9 @@ class MainWindow(QMainWindow):
         """Call ``then(project)`` with the project for the current choices (fitted in the
         background), or with one the user picks when no data is open."""
         if self.session.table is not None and self.session.chosen():
-            if self._still_fitting():
+            if not self._ready_to_write():
                 return
-            problems = self.session.problems()
-            if problems:
-                self.show_message(next(iter(problems.values())))
-                return
-            make = self._project_job()  # the fits are done: this records them
+            make = projects.project_builder(self.session)  # the fits are done: this records them
             self.jobs.run("Preparing the parameters", lambda p, c: make(), then, self.show_message)
             return
         path = self.ask_open_path("Which project?", PROJECT_OR_WORKBOOK_FILTER)
@@ -927,16 +885,21 @@ class MainWindow(QMainWindow):
         self.last_message = box
 
     def show_about(self) -> None:
-        box = QMessageBox(self)
-        box.setWindowTitle("About Scalewright")
-        box.setText(
-            f"<b>Scalewright {__version__}</b><br>Scale the number columns of a table, keep "
-            "every fitted value in a project, and turn scaled values back into original units."
-        )
-        box.open()
-        self.last_message = box
+        from .about_dialog import AboutDialog
+
+        self.about_dialog = AboutDialog(self)
+        self.about_dialog.open()
 
     # ================================================================== geometry and closing
+
+    def _fit_to_screen(self, width: int, height: int) -> None:
+        """Open at the preferred size, but never larger than the screen's free area (a
+        1360 x 860 window on a 1280 x 800 screen put the method panel past its edge)."""
+        screen = self.screen() or QApplication.primaryScreen()
+        if screen is not None:
+            free = screen.availableGeometry()
+            width, height = min(width, free.width()), min(height, free.height() - 40)
+        self.resize(width, height)
 
     def _restore_geometry(self) -> None:
         geometry = self.settings.value("window/geometry")

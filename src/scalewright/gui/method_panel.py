@@ -25,8 +25,8 @@ from PySide6.QtWidgets import (
 
 from ..engine import METHODS, FitSettings, OptionSpec, get_method
 from ..errors import ScalewrightError
+from ..session import FIT_WHERE_KINDS, Session
 from . import commands, theme
-from .state import FIT_WHERE_KINDS, Session
 
 ALL_ROWS = "all rows"
 NO_GROUPS = "no groups"
@@ -110,6 +110,8 @@ class MethodPanel(QWidget):
         suggest_row.addStretch(1)
         outer.addLayout(suggest_row)
         self.reason = _label("", "hint")
+        # (selected labels, their choices) when Suggest last filled in the reasons.
+        self._suggested: tuple[list[str], dict] | None = None
         self.reason.setToolTip("Why the suggested method was chosen")
         outer.addWidget(self.reason)
 
@@ -180,6 +182,17 @@ class MethodPanel(QWidget):
         if set(labels) & set(self.session.selection):
             self.refresh()
 
+    def _forget_stale_reasons(self) -> None:
+        """Suggest's reasons hold only while the same columns are selected and still have
+        the suggested choices: an undo, another method or another selection clears them."""
+        if self._suggested is None:
+            return
+        labels, choices = self._suggested
+        current = {label: self.session.choice(label) for label in choices}
+        if list(self.labels) != labels or current != choices:
+            self._suggested = None
+            self.reason.setText("")
+
     def _on_fitted(self, label: str) -> None:
         if label in self.session.selection:
             self._show_fit(self.labels)
@@ -230,6 +243,7 @@ class MethodPanel(QWidget):
 
     def refresh(self) -> None:
         """Show the selected columns' method, options, fitted values and warnings."""
+        self._forget_stale_reasons()
         s = self.session
         labels = self.labels
         has = bool(labels)
@@ -405,6 +419,7 @@ class MethodPanel(QWidget):
     def suggest(self) -> dict[str, str]:
         """Give the selected columns the engine's suggestion, and say why."""
         reasons = commands.apply_suggestions(self.stack, self.session, self.labels)
+        self._suggested = (list(self.labels), {k: self.session.choice(k) for k in reasons})
         if len(reasons) == 1:
             text = "Suggested because the column is " + next(iter(reasons.values())) + "."
         else:

@@ -15,9 +15,9 @@ from PySide6.QtCore import QAbstractTableModel, QModelIndex, Qt
 from PySide6.QtGui import QBrush, QColor, QFont
 from PySide6.QtWidgets import QComboBox, QHBoxLayout, QLabel, QTableView, QVBoxLayout, QWidget
 
+from ..session import Session
 from . import theme
 from .frame_view import format_cell
-from .state import Session
 
 BLOCK = 2048
 MAX_BLOCKS = 256  # cached scaled blocks (about 4 MB at most)

@@ -20,7 +20,6 @@ from PySide6.QtCore import Qt, Signal
 from PySide6.QtWidgets import (
     QAbstractItemView,
     QComboBox,
-    QFileDialog,
     QGroupBox,
     QHBoxLayout,
     QHeaderView,
@@ -36,7 +35,7 @@ from PySide6.QtWidgets import (
 from .. import engine, tasks
 from .. import io as swio
 from ..errors import ScalewrightError
-from . import theme
+from . import file_dialogs, theme
 from .errors import plain_message
 from .frame_view import FrameModel, make_preview_view
 from .widgets import MUTED_STYLE, escape_html, kind_word, message_label, plural, set_message
@@ -257,7 +256,7 @@ class RestoreDialog(WritingDialog):
         )
 
     def _browse_project(self) -> None:
-        name, _ = QFileDialog.getOpenFileName(
+        name, _ = file_dialogs.open_file_name(
             self, "Choose a project or a scaled workbook", "", PROJECT_FILTER
         )
         if name:
@@ -266,10 +265,12 @@ class RestoreDialog(WritingDialog):
     # ------------------------------------------------------------------ reading
 
     def _reader(self, path: Path, sheet: str | None):
+        reading = swio.ReadOptions(sheet=sheet)
+        if self._project is not None:  # read with the project's kind corrections
+            reading = tasks.reading_for(self._project, reading)
+
         def read(progress, cancelled):
-            return swio.read_table(
-                path, swio.ReadOptions(sheet=sheet), progress=progress, cancelled=cancelled
-            )
+            return swio.read_table(path, reading, progress=progress, cancelled=cancelled)
 
         return read
 

@@ -10,6 +10,8 @@ analyst may ask about, in one place:
   Leading zeros, digit strings over 15 digits, all-same-width digit strings of 8 or more
   digits, and letter+digit codes are identifiers and stay text. Whole numbers written
   without a decimal point load as ``Int64``; other numbers as ``float64``.
+- Corrections: ``ReadOptions.kinds`` reads a column as number, identifier, text or date
+  where its cells allow it (``io.corrections``); ``allowed_kinds`` says which they allow.
 - Dates: ISO (``2019-04-03``, with or without a time), ``yyyy/mm/dd``, and
   ``dd/mm/yyyy``-like with one separator; month-first only when a first field goes above
   12, else day-first with a note.
@@ -27,8 +29,10 @@ analyst may ask about, in one place:
 """
 
 from .atomic import atomic_path, ensure_not_source
+from .corrections import KindRefused, allowed_kinds, identifier_of_numbers
 from .labels import unique_labels
 from .options import (
+    CORRECTABLE_KINDS,
     SUPPORTED_READ,
     SUPPORTED_WRITE,
     ColumnKind,
@@ -40,16 +44,20 @@ from .reader import detect, fingerprint, list_sheets, read_table
 from .writers import read_embedded_project, write_scaled_workbook, write_table
 
 __all__ = [
+    "CORRECTABLE_KINDS",
     "SUPPORTED_READ",
     "SUPPORTED_WRITE",
     "ColumnKind",
     "Detection",
+    "KindRefused",
     "ReadOptions",
     "Table",
+    "allowed_kinds",
     "atomic_path",
     "detect",
     "ensure_not_source",
     "fingerprint",
+    "identifier_of_numbers",
     "list_sheets",
     "read_embedded_project",
     "read_table",

@@ -8,8 +8,10 @@ from __future__ import annotations
 
 import contextlib
 import os
+import signal
 import stat
 import tempfile
+import threading
 from collections.abc import Iterator
 from pathlib import Path
 
@@ -18,6 +20,27 @@ from ..errors import WriteError
 # Read once at import: changing the umask later to read it would race with other threads.
 _UMASK = os.umask(0o022)
 os.umask(_UMASK)
+
+
+@contextlib.contextmanager
+def signals_held() -> Iterator[None]:
+    """Hold Ctrl-C and SIGTERM while a temporary file or folder is made or removed.
+
+    The command line turns those signals into an exception; one arriving inside
+    ``mkstemp`` or ``rmtree`` would leave a file behind, unrecorded or half removed. Held,
+    it is delivered right after the block, where the usual clean-up runs. (Only the main
+    thread receives signals; elsewhere this does nothing.)
+    """
+    if threading.current_thread() is not threading.main_thread() or not hasattr(
+        signal, "pthread_sigmask"
+    ):
+        yield
+        return
+    previous = signal.pthread_sigmask(signal.SIG_BLOCK, {signal.SIGINT, signal.SIGTERM})
+    try:
+        yield
+    finally:
+        signal.pthread_sigmask(signal.SIG_SETMASK, previous)
 
 
 @contextlib.contextmanager
@@ -34,22 +57,26 @@ def atomic_path(target: str | os.PathLike, *, keep_suffix: bool = False) -> Iter
     folder = target.parent
     if not folder.is_dir():
         raise WriteError(target, "the folder does not exist")
+    suffix = ".part" + (target.suffix if keep_suffix else "")
+    tmp: Path | None = None
     try:
-        suffix = ".part" + (target.suffix if keep_suffix else "")
-        fd, name = tempfile.mkstemp(prefix=f".{target.name}.", suffix=suffix, dir=folder)
-        os.close(fd)
-    except OSError as err:
-        raise WriteError(target, f"cannot write in this folder ({err.strerror})") from None
-    tmp = Path(name)
-    try:
+        # Made and recorded with the signals held: a Ctrl-C is delivered only once ``tmp``
+        # names the file, inside this try, so the file is removed below.
+        with signals_held():
+            fd, name = tempfile.mkstemp(prefix=f".{target.name}.", suffix=suffix, dir=folder)
+            tmp = Path(name)
+            os.close(fd)
         yield tmp
         os.chmod(tmp, _mode_for(target))
         os.replace(tmp, target)
     except OSError as err:
+        if tmp is None:
+            raise WriteError(target, f"cannot write in this folder ({err.strerror})") from None
         _remove(tmp)
         raise WriteError(target, f"the file could not be written ({err.strerror or err})") from None
     except BaseException:
-        _remove(tmp)
+        if tmp is not None:
+            _remove(tmp)
         raise
 
 
@@ -62,7 +89,7 @@ def _mode_for(target: Path) -> int:
 
 
 def _remove(path: Path) -> None:
-    with contextlib.suppress(OSError):
+    with signals_held(), contextlib.suppress(OSError):
         path.unlink()
 
 

@@ -13,6 +13,7 @@ from __future__ import annotations
 
 import codecs
 import re
+from dataclasses import dataclass, replace
 from pathlib import Path
 from typing import NamedTuple
 
@@ -23,11 +24,45 @@ import pyarrow.csv as pacsv
 
 from ..errors import Cancelled, ReadError
 from . import detect as det
-from .kinds import arrow_to_numpy, classify_arrow, classify_text, decimal_comma_note
+from .kinds import arrow_to_numpy, classify_arrow, decimal_comma_note, text_series
 from .labels import unique_labels
 from .options import CancelCheck, ColumnKind, Progress, ReadOptions, Table
+from .table import RawTable, build_table
 
 _UTF8 = {"utf-8", "utf8", "utf_8", "ascii", "us-ascii"}
+# Files at least this long are parsed from the disk (see read_text_table); the start read
+# first holds the detection sample with room for title lines above the header.
+STREAM_HEAD_BYTES = det.SAMPLE_BYTES * 4
+# A preview reads this much of the file's start.
+PREVIEW_BYTES = det.SAMPLE_BYTES * 4
+
+
+@dataclass(frozen=True)
+class TextLayout:
+    """How the rows of a text file are written, resolved from the user's options and the
+    file's start: what every parsing step below needs to know."""
+
+    encoding: str
+    delimiter: str
+    decimal: str
+    thousands: str
+    header_row: int  # 0-based physical line of the header
+    width: int  # fields in every row
+    quoted: bool  # a double quote appears below the header (a cell may hold a line end)
+    skip_spaces: bool  # some blank row holds spaces (pyarrow needs telling to skip those)
+
+    def read_options(self) -> ReadOptions:
+        """The options as resolved, recorded in the Table (and so in a project)."""
+        return ReadOptions(
+            self.encoding, self.delimiter, self.decimal, self.thousands, self.header_row, None
+        )
+
+
+class _FileTail(NamedTuple):
+    """The rest of a file from byte ``start``, for pyarrow to read from the disk."""
+
+    path: Path
+    start: int
 
 
 def read_text_table(
@@ -43,71 +78,141 @@ def read_text_table(
     A big UTF-8 file is examined from its start and its rows are then parsed by pyarrow
     straight from the disk, which overlaps reading with parsing and spares a copy of the
     whole file; whatever that way cannot settle exactly (another encoding, a header far
-    down, a row that does not split) is read again from memory as below.
+    down, a row that does not split) is read again from memory (``_read_whole``).
     """
-    if preview_rows is None:
-        head = _read_bytes(path, STREAM_HEAD_BYTES)
-        if len(head) < STREAM_HEAD_BYTES:  # the whole file
-            return _read_text(path, options, head, None, False, progress, cancelled)
-        try:
-            return _read_text(path, options, head, None, True, progress, cancelled)
-        except _ReadWhole:
-            pass
-    raw = _read_bytes(path, det.SAMPLE_BYTES * 4 if preview_rows is not None else None)
-    return _read_text(path, options, raw, preview_rows, False, progress, cancelled)
+    if preview_rows is not None:
+        start = _read_bytes(path, PREVIEW_BYTES)
+        return _read_whole(path, options, start, preview_rows=preview_rows)
+    raw = _read_bytes(path, STREAM_HEAD_BYTES)
+    if len(raw) == STREAM_HEAD_BYTES:  # a big file, perhaps one to parse from the disk
+        table = _read_streamed(path, options, raw, progress, cancelled)
+        if table is not None:
+            return table
+        raw = _read_bytes(path, None)
+    return _read_whole(path, options, raw, progress, cancelled)
 
 
-# Files at least this long are parsed from the disk (see read_text_table); the start read
-# first holds the detection sample with room for title lines above the header.
-STREAM_HEAD_BYTES = det.SAMPLE_BYTES * 4
-
-
-class _ReadWhole(Exception):
-    """The streamed read cannot give the exact result: read the whole file instead."""
-
-
-class _FileTail(NamedTuple):
-    """The rest of a file from byte ``start``, for pyarrow to read from the disk."""
-
-    path: Path
-    start: int
-
-
-def _read_text(path, options, raw, preview_rows, streamed, progress, cancelled) -> Table:
-    """``raw`` is the whole file, or with ``preview_rows`` or ``streamed`` its start."""
-    notes: list[str] = []
+def _read_whole(
+    path: Path,
+    options: ReadOptions,
+    raw: bytes,
+    progress: Progress | None = None,
+    cancelled: CancelCheck | None = None,
+    *,
+    preview_rows: int | None = None,
+) -> Table:
+    """Read from memory: ``raw`` is the whole file, or with ``preview_rows`` its start."""
     if not raw:
         raise ReadError(path, "the file is empty")
-    try:
-        if options.encoding is not None:
-            encoding, why = options.encoding, None
-        else:
-            encoding, why = det.detect_encoding(raw)
-    except det.NotText:
-        raise ReadError(path, "this is not a text table (it contains binary data)") from None
-    truncated = streamed or (preview_rows is not None and len(raw) == det.SAMPLE_BYTES * 4)
-    if streamed and _codec_name(encoding) not in _UTF8 | {"utf-8-sig"}:
-        raise _ReadWhole()
+    truncated = preview_rows is not None and len(raw) == PREVIEW_BYTES
+    encoding, why = _encoding(path, options, raw)
     try:
         data = _to_utf8(path, raw, encoding, partial=truncated)
     except ReadError:
-        if streamed:
-            raise _ReadWhole() from None
         if options.encoding is not None or encoding != "utf-8":
             raise
         # UTF-8 at the start, something else further down: a single-byte code page.
         encoding, why = det.single_byte(raw)
         data = _to_utf8(path, raw, encoding, partial=truncated)
-    skipped = len(raw) - len(data)  # a byte-order mark (only ever in streamed UTF-8)
     if truncated:
-        data = data[: data.rfind(b"\n") + 1] or data
-    if streamed and b"\n" not in data:
-        raise _ReadWhole()
+        data = _whole_lines(data)
     if b"\n" not in data and b"\r" in data:
         data = data.replace(b"\r", b"\n")  # classic Mac OS line ends
+    found = _find_header(path, options, data, why)
+    head = _examine(path, options, data, found, preview_rows)
+    if progress is not None:
+        progress(0.1)
+    body, starts = head.body, head.scan.starts
+    if len(starts) < 2:
+        rest = body[len(body) :]
+    elif preview_rows is not None and preview_rows + 1 < len(starts):
+        rest = body[int(starts[1]) : int(starts[preview_rows + 1])]
+    else:
+        rest = body[int(starts[1]) :]
+    _check_cancelled(cancelled)
+    layout = head.layout(encoding, quoted=data.find(b'"', found.offset) >= 0)
+    floats = _planned_floats(head, layout, options) if preview_rows is None else set()
+    frame = _read_body(path, rest, layout, head.scan, floats)
+    return _finish(path, options, frame, rest, layout, head, progress=progress, cancelled=cancelled)
+
+
+def _read_streamed(
+    path: Path,
+    options: ReadOptions,
+    start: bytes,
+    progress: Progress | None,
+    cancelled: CancelCheck | None,
+) -> Table | None:
+    """Read a big file whose rows pyarrow parses from the disk, examined from ``start``
+    (its first ``STREAM_HEAD_BYTES``); None when only a read from memory gives the exact
+    result, which each check below says why."""
+    encoding, why = _encoding(path, options, start)
+    if _codec_name(encoding) not in _UTF8 | {"utf-8-sig"}:
+        return None  # other encodings are converted in memory
+    data = _utf8_start(start)
+    if data is None:
+        return None  # not UTF-8 after all: the whole read finds the code page
+    skipped = len(start) - len(data)  # a byte-order mark
+    data = _whole_lines(data)
+    if b"\n" not in data:
+        return None
+    found = _find_header(path, options, data, why)
+    if found.offset is None or found.offset + 2 * det.SAMPLE_BYTES > len(data):
+        return None  # the header is too far down for a full sample after it
+    head = _examine(path, options, data, found, None)
+    if len(head.scan.starts) < 3:
+        return None  # rows too long for the stretch to hold a sample
+    if data.find(b'"', found.offset) < 0:
+        # Whether a quote comes further down decides how pyarrow splits the rows, and a
+        # file without quotes splits faster, so such a file is read whole to find out.
+        return None
+    if progress is not None:
+        progress(0.1)
+    _check_cancelled(cancelled)
+    layout = head.layout(encoding, quoted=True)
+    rest = _FileTail(Path(path), skipped + found.offset + int(head.scan.starts[1]))
+    floats = _planned_floats(head, layout, options)
+    try:
+        frame = _read_body(path, rest, layout, head.scan, floats)
+    except (pa.ArrowException, OSError):
+        return None  # a row that does not split, or bytes that are not UTF-8, further down
+    return _finish(path, options, frame, rest, layout, head, progress=progress, cancelled=cancelled)
+
+
+def _check_cancelled(cancelled: CancelCheck | None) -> None:
+    if cancelled is not None and cancelled():
+        raise Cancelled()
+
+
+def _encoding(path: Path, options: ReadOptions, raw: bytes) -> tuple[str, str | None]:
+    """The user's encoding, else the one detected with the reason to show."""
+    if options.encoding is not None:
+        return options.encoding, None
+    try:
+        return det.detect_encoding(raw)
+    except det.NotText:
+        raise ReadError(path, "this is not a text table (it contains binary data)") from None
+
+
+def _whole_lines(data: bytes) -> bytes:
+    """The start of a file up to its last complete line."""
+    return data[: data.rfind(b"\n") + 1] or data
+
+
+class _HeaderLine(NamedTuple):
+    """Where the header is: found from the sample, before the rows are scanned."""
+
+    delimiter: str
+    header_row: int
+    offset: int | None  # byte where the header line starts; None past the end of the data
+    notes: list[str]
+
+
+def _find_header(path: Path, options: ReadOptions, data: bytes, why: str | None) -> _HeaderLine:
+    """Delimiter and header row: the user's choice, else what the sample shows."""
+    notes: list[str] = []
     if why:
         notes.append(f"Encoding: {why}.")
-
     sample = _sample_text(data)
     if not sample.strip():
         raise ReadError(path, "the file has no data (only blank lines)")
@@ -124,83 +229,103 @@ def _read_text(path, options, raw, preview_rows, streamed, progress, cancelled) 
             notes.append(f"Header found on row {header_row + 1}; the lines above it were skipped.")
     else:
         header_row = options.header_row
+    return _HeaderLine(delimiter, header_row, _line_offset(data, header_row), notes)
 
-    offset = _line_offset(data, header_row)
-    if streamed and (offset is None or offset + 2 * det.SAMPLE_BYTES > len(data)):
-        raise _ReadWhole()  # the header is too far down for a full sample after it
+
+@dataclass(frozen=True)
+class _Head:
+    """The rows from the header down, as far as the first stretch shows them."""
+
+    found: _HeaderLine
+    body: memoryview  # the bytes from the header line on
+    stretch: int  # how many of them were scanned (``scan``)
+    scan: Scan
+    headers: list[str]
+    decimal: str
+    thousands: str
+
+    def layout(self, encoding: str, *, quoted: bool) -> TextLayout:
+        found = self.found
+        return TextLayout(
+            encoding,
+            found.delimiter,
+            self.decimal,
+            self.thousands,
+            found.header_row,
+            len(self.headers),
+            quoted,
+            self.scan.spaces,
+        )
+
+
+def _examine(
+    path: Path, options: ReadOptions, data: bytes, found: _HeaderLine, preview_rows: int | None
+) -> _Head:
+    """Scan the first stretch below the header: header text, row widths, number marks."""
+    header_row, delimiter, offset = found.header_row, found.delimiter, found.offset
     if offset is None or not data[offset : offset + det.SAMPLE_BYTES].strip():
         raise ReadError(path, f"row {header_row + 1} is beyond the end of the file")
     body = memoryview(data)[offset:]
     # Only the first stretch is scanned here; the bulk parse checks the rest (and on a
     # failure the whole file is scanned to name the offending row).
-    head_len = len(body)
-    if head_len > det.SAMPLE_BYTES:
-        head_len = bytes(body[: det.SAMPLE_BYTES]).rfind(b"\n") + 1 or det.SAMPLE_BYTES
-    scan = _scan_rows(body[:head_len], delimiter)
-    starts, counts, blank = scan.starts, scan.counts, scan.blank
-    if blank[0]:
+    stretch = len(body)
+    if stretch > det.SAMPLE_BYTES:
+        stretch = bytes(body[: det.SAMPLE_BYTES]).rfind(b"\n") + 1 or det.SAMPLE_BYTES
+    scan = _scan_rows(body[:stretch], delimiter)
+    if scan.blank[0]:
         raise ReadError(path, f"row {header_row + 1} is blank, so it cannot be the header")
-    width = int(counts[0])
+    width = int(scan.counts[0])
     header_fields = det.parse_rows(
         bytes(body[: _row_end(scan, body, 0)]).decode("utf-8"), delimiter, 1
     )
     headers = header_fields[0][1] if header_fields else [""] * width
     if len(headers) != width:  # header line with unbalanced quotes
         raise ReadError(path, f"row {header_row + 1} (the header) cannot be split into columns")
-    data_rows = np.flatnonzero(~blank[1:]) + 1
-    if head_len < len(body):
+    data_rows = np.flatnonzero(~scan.blank[1:]) + 1
+    if stretch < len(body):
         data_rows = data_rows[:-1]  # the last row of the stretch may continue past it
     if preview_rows is not None:
         data_rows = data_rows[:preview_rows]
     _check_widths(path, scan, data_rows, width, header_row)
+    decimal, thousands = _number_marks(body, delimiter, options, found.notes)
+    return _Head(found, body, stretch, scan, headers, decimal, thousands)
 
-    decimal, thousands = _number_marks(body, delimiter, options, notes)
 
-    if progress is not None:
-        progress(0.1)
-    if streamed and len(starts) < 3:
-        raise _ReadWhole()  # rows too long for the stretch to hold a sample
-    if streamed:
-        rest = _FileTail(Path(path), skipped + offset + int(starts[1]))
-    elif len(starts) < 2:
-        rest = body[len(body) :]
-    elif preview_rows is not None and preview_rows + 1 < len(starts):
-        rest = body[int(starts[1]) : int(starts[preview_rows + 1])]
-    else:
-        rest = body[int(starts[1]) :]
-    if cancelled is not None and cancelled():
-        raise Cancelled()
-    quoted = data.find(b'"', offset) >= 0
-    if streamed and not quoted:
-        # Whether a quote comes further down decides how pyarrow splits the rows, and a
-        # file without quotes splits faster, so such a file is read whole to find out.
-        raise _ReadWhole()
-    floats: set[int] = set()
-    if preview_rows is None and head_len < len(body) and len(starts) > 2:
+def _planned_floats(head: _Head, layout: TextLayout, options: ReadOptions) -> set[int]:
+    """Columns to parse as numbers directly, judged on the scanned stretch; never a column
+    the options read as another kind, which needs its cells as written."""
+    starts = head.scan.starts
+    if head.stretch < len(head.body) and len(starts) > 2:
         # The sample stops before the last scanned row, which may continue past the stretch.
-        sample = body[int(starts[1]) : int(starts[-1])]
-        floats = _float_columns(sample, width, delimiter, quoted, scan.spaces, decimal, thousands)
-    try:
-        frame = _read_body(path, rest, width, delimiter, quoted, header_row, scan, floats, decimal)
-    except (pa.ArrowException, OSError):
-        if not streamed:
-            raise
-        raise _ReadWhole() from None
-    used = ReadOptions(encoding, delimiter, decimal, thousands, header_row, None)
-    return build_table(
+        floats = _float_columns(head.body[int(starts[1]) : int(starts[-1])], layout)
+        labels = unique_labels(head.headers)
+        return {i for i in floats if labels[i] not in options.kinds}
+    return set()
+
+
+def _finish(
+    path, options: ReadOptions, frame, rest, layout: TextLayout, head: _Head, *, progress, cancelled
+) -> Table:
+    """Classify the parsed columns into the Table (``table.build_table``)."""
+    decimal, thousands = layout.decimal, layout.thousands
+
+    def classify(cells, _i, label):
+        return _classify_read(cells, label, decimal, thousands)
+
+    def text(cells, _i):
+        return text_series(cells)
+
+    raw = RawTable(
         path,
         frame,
-        headers,
-        used,
-        notes,
-        [],
-        decimal,
-        thousands,
-        from_workbook=False,
-        progress=progress,
-        cancelled=cancelled,
-        bare_tail=lambda limit: _bare_tail(rest, limit, width),
+        head.headers,
+        replace(layout.read_options(), kinds=options.kinds),
+        classify,
+        text,
+        head.found.notes,
+        bare_tail=lambda limit: _bare_tail(rest, limit, layout.width),
     )
+    return build_table(raw, progress=progress, cancelled=cancelled)
 
 
 _TAIL_BLOCK = 1 << 16
@@ -289,17 +414,13 @@ def _to_utf8(path: Path, raw: bytes, encoding: str, *, partial: bool) -> bytes:
     except LookupError:
         raise ReadError(path, f"unknown encoding '{encoding}'") from None
     if name in _UTF8 or name == "utf-8-sig":
-        data = raw[3:] if raw.startswith(codecs.BOM_UTF8) else raw
-        try:
-            if not data.isascii():  # ASCII is UTF-8; the check is a fast scan
-                data.decode("utf-8")
-        except UnicodeDecodeError as err:
-            if not (partial and err.reason == "unexpected end of data"):
-                raise ReadError(
-                    path,
-                    f"the text is not valid {encoding} (at byte {err.start}); "
-                    "choose another encoding",
-                ) from None
+        data = _without_bom(raw)
+        err = _utf8_error(data, partial=partial)
+        if err is not None:
+            raise ReadError(
+                path,
+                f"the text is not valid {encoding} (at byte {err.start}); choose another encoding",
+            )
         return data
     try:
         text = codecs.getincrementaldecoder(name)().decode(raw, final=not partial)
@@ -308,6 +429,27 @@ def _to_utf8(path: Path, raw: bytes, encoding: str, *, partial: bool) -> bytes:
             path, f"the text is not valid {encoding} (at byte {err.start}); choose another encoding"
         ) from None
     return text.removeprefix("\ufeff").encode("utf-8")
+
+
+def _utf8_start(start: bytes) -> bytes | None:
+    """The start of a UTF-8 file without a byte-order mark; None if it is not UTF-8."""
+    data = _without_bom(start)
+    return None if _utf8_error(data, partial=True) is not None else data
+
+
+def _without_bom(raw: bytes) -> bytes:
+    return raw[3:] if raw.startswith(codecs.BOM_UTF8) else raw
+
+
+def _utf8_error(data: bytes, *, partial: bool) -> UnicodeDecodeError | None:
+    """Why ``data`` is not UTF-8 (a character cut at the end of a ``partial`` start is)."""
+    try:
+        if not data.isascii():  # ASCII is UTF-8; the check is a fast scan
+            data.decode("utf-8")
+    except UnicodeDecodeError as err:
+        if not (partial and err.reason == "unexpected end of data"):
+            return err
+    return None
 
 
 def _sample_text(data: bytes) -> str:
@@ -388,40 +530,41 @@ def _check_widths(path, scan, rows, width, header_row) -> None:
 
 
 def _parse_body(
-    rest, width, delimiter, quoted, *, skip_spaces, floats=(), decimal=".", only=None
+    rest, layout: TextLayout, *, floats=(), only=None, skip_spaces: bool | None = None
 ) -> pa.Table:
     """Split the data rows into columns named "0", "1", ... with pyarrow's CSV reader.
 
     Cells are kept as text so that leading zeros and long codes survive; pyarrow builds
     those strings without Python objects, about ten times faster than the pandas C reader
     with ``dtype=str`` (``benchmarks/bench_io.py``). The columns in ``floats`` are read as
-    numbers with ``decimal`` directly, which saves building and casting their text; a cell
-    there that is not a number raises. ``only`` reads just those columns. Rows of the wrong
-    width raise.
+    numbers with the layout's decimal mark directly, which saves building and casting their
+    text; a cell there that is not a number raises. ``only`` reads just those columns. Rows
+    of the wrong width raise. ``skip_spaces`` overrides the layout's.
     """
-    names = [str(i) for i in range(width)]
+    names = [str(i) for i in range(layout.width)]
     streamed = isinstance(rest, _FileTail)
     if not streamed and not len(rest):
         return pa.table({name: pa.array([], pa.string()) for name in names})
     types = dict.fromkeys(names, pa.string())
     types.update((str(i), pa.float64()) for i in floats)
+    skip = layout.skip_spaces if skip_spaces is None else skip_spaces
     if streamed:
         with pa.OSFile(str(rest.path)) as source:
             source.seek(rest.start)
-            return _arrow_csv(source, names, types, delimiter, quoted, skip_spaces, decimal, only)
+            return _arrow_csv(source, layout, types, skip, only)
     source = pa.BufferReader(pa.py_buffer(rest))
-    return _arrow_csv(source, names, types, delimiter, quoted, skip_spaces, decimal, only)
+    return _arrow_csv(source, layout, types, skip, only)
 
 
-def _arrow_csv(source, names, types, delimiter, quoted, skip_spaces, decimal, only) -> pa.Table:
+def _arrow_csv(source, layout: TextLayout, types, skip_spaces: bool, only) -> pa.Table:
     return pacsv.read_csv(
         source,
-        read_options=pacsv.ReadOptions(column_names=names),
+        read_options=pacsv.ReadOptions(column_names=list(types)),
         parse_options=pacsv.ParseOptions(
-            delimiter=delimiter,
+            delimiter=layout.delimiter,
             quote_char='"',
             double_quote=True,
-            newlines_in_values=quoted,
+            newlines_in_values=layout.quoted,
             ignore_empty_lines=True,
             # The handler slows pyarrow threefold, so only files with such lines pay.
             invalid_row_handler=_skip_blank_row if skip_spaces else None,
@@ -431,7 +574,7 @@ def _arrow_csv(source, names, types, delimiter, quoted, skip_spaces, decimal, on
             strings_can_be_null=True,
             quoted_strings_can_be_null=True,
             null_values=[""],
-            decimal_point=decimal,
+            decimal_point=layout.decimal,
             # Bytes in memory were checked (or made) UTF-8 on loading; a file read from the
             # disk is checked here.
             check_utf8=isinstance(source, pa.OSFile),
@@ -446,17 +589,17 @@ _NUMBER_RETRIES = 3
 _FAILED_COLUMN = re.compile(r"In CSV column #(\d+):.*CSV conversion error to double")
 
 
-def _float_columns(sample, width, delimiter, quoted, skip_spaces, decimal, thousands) -> set[int]:
+def _float_columns(sample, layout: TextLayout) -> set[int]:
     """Columns whose sample rows read, by the rules of ``kinds``, as float64 numbers that
     a direct number parse gives identically (see ``_direct_numbers_hold``)."""
     try:
-        table = _parse_body(sample, width, delimiter, quoted, skip_spaces=skip_spaces)
+        table = _parse_body(sample, layout)
     except pa.ArrowInvalid:
         return set()
-    comma_note = [decimal_comma_note("c")] if decimal == "," else []
+    comma_note = [decimal_comma_note("c")] if layout.decimal == "," else []
     found = set()
-    for i in range(width):
-        series, kind, notes = classify_arrow(table.column(i), "c", decimal, thousands)
+    for i in range(layout.width):
+        series, kind, notes = classify_arrow(table.column(i), "c", layout.decimal, layout.thousands)
         if kind is not ColumnKind.NUMBER or series.dtype != np.float64 or notes != comma_note:
             continue
         if _direct_numbers_hold(series.to_numpy(), series.isna().sum()):
@@ -473,7 +616,7 @@ def _direct_numbers_hold(x: np.ndarray, nulls: int) -> bool:
     return not np.any(x == np.floor(x))
 
 
-def _read_body(path, rest, width, delimiter, quoted, header_row, scan, floats, decimal):
+def _read_body(path, rest, layout: TextLayout, scan: Scan, floats) -> pa.Table:
     """The data rows as an Arrow table: ``floats`` columns as float64 where the whole
     column bears that out, every other column (and every column on any doubt) as text."""
     floats = set(floats)
@@ -481,15 +624,7 @@ def _read_body(path, rest, width, delimiter, quoted, header_row, scan, floats, d
         if not floats:
             break
         try:
-            table = _parse_body(
-                rest,
-                width,
-                delimiter,
-                quoted,
-                skip_spaces=scan.spaces,
-                floats=floats,
-                decimal=decimal,
-            )
+            table = _parse_body(rest, layout, floats=floats)
         except pa.ArrowInvalid as err:
             failed = _FAILED_COLUMN.search(str(err))
             if failed is None or int(failed.group(1)) not in floats:
@@ -502,37 +637,36 @@ def _read_body(path, rest, width, delimiter, quoted, header_row, scan, floats, d
             if not _direct_numbers_hold(arrow_to_numpy(table.column(i)), table.column(i).null_count)
         ]
         if doubtful:
-            text = _parse_body(
-                rest, width, delimiter, quoted, skip_spaces=scan.spaces, only=doubtful
-            )
+            text = _parse_body(rest, layout, only=doubtful)
             for i in doubtful:
                 table = table.set_column(i, str(i), text.column(str(i)))
         return table
     try:
-        return _parse_body(rest, width, delimiter, quoted, skip_spaces=scan.spaces)
+        return _parse_body(rest, layout)
     except pa.ArrowInvalid as err:
         if isinstance(rest, _FileTail):
             raise  # the whole file is read into memory to name the row
-        return _after_parse_error(path, rest, err, width, delimiter, quoted, header_row, scan)
+        return _after_parse_error(path, rest, err, layout, scan)
 
 
-def _after_parse_error(path, rest, err, width, delimiter, quoted, header_row, head_scan):
+def _after_parse_error(path, rest, err, layout: TextLayout, head_scan: Scan) -> pa.Table:
     """Scan every row to name the one that broke the parse, or retry past blank lines."""
-    scan = _scan_rows(rest, delimiter)
+    scan = _scan_rows(rest, layout.delimiter)
     offset_lines = int(head_scan.lines[1]) if len(head_scan.lines) > 1 else 1
     counts, lines, blank, spaces = scan.counts, scan.lines, scan.blank, scan.spaces
     rows = np.flatnonzero(~blank)
-    bad = rows[counts[rows] != width]
+    bad = rows[counts[rows] != layout.width]
     if len(bad):
         r = int(bad[0])
+        header_row = layout.header_row
         raise ReadError(
             path,
             f"row {header_row + 1 + offset_lines + int(lines[r])} has {int(counts[r])} fields "
-            f"but the header (row {header_row + 1}) has {width}",
+            f"but the header (row {header_row + 1}) has {layout.width}",
         )
     if spaces:
         try:
-            return _parse_body(rest, width, delimiter, quoted, skip_spaces=True)
+            return _parse_body(rest, layout, skip_spaces=True)
         except pa.ArrowInvalid as again:
             err = again
     raise ReadError(path, f"the rows cannot be split into columns ({err})")
@@ -543,74 +677,6 @@ def _skip_blank_row(row) -> str:
     return "skip" if not (row.text or "").strip() else "error"
 
 
-def build_table(
-    path: Path,
-    frame: pd.DataFrame | pa.Table,
-    headers: list[str],
-    used: ReadOptions,
-    notes: list[str],
-    sheets: list[str],
-    decimal: str,
-    thousands: str,
-    *,
-    from_workbook: bool,
-    classify=None,
-    progress: Progress | None = None,
-    cancelled: CancelCheck | None = None,
-    span: tuple[float, float] = (0.4, 1.0),
-    bare_tail=None,
-) -> Table:
-    """Drop empty edge rows/columns, classify every column and attach unique labels.
-
-    ``frame`` is a DataFrame (workbooks) or the Arrow table of a text file, whose columns
-    are strings, or float64 where the file was read as numbers directly (``_read_body``).
-    Progress moves through ``span`` column by column. ``bare_tail(n)`` (text files) says
-    how many of the last ``n`` rows with no value are export leftovers to leave out;
-    without it all of them are.
-    """
-    cells = _Cells(frame)
-    # Trailing rows with no value at all (left behind by spreadsheet exports).
-    cells.drop_empty_tail(bare_tail)
-    # Columns with no header text and no values at the right edge are not part of the table.
-    keep = list(range(cells.width))
-    while keep and not headers[keep[-1]].strip() and not cells.has_values(keep[-1]):
-        keep.pop()
-    dropped = cells.width - len(keep)
-    if dropped:
-        notes.append(f"{dropped} empty column(s) at the right edge were left out.")
-    headers = [headers[i] for i in keep]
-    labels = unique_labels(headers)
-    columns: dict[str, pd.Series] = {}
-    kinds: dict[str, ColumnKind] = {}
-    for done, (i, label) in enumerate(zip(keep, labels, strict=True)):
-        if cancelled is not None and cancelled():
-            raise Cancelled()
-        if progress is not None:
-            progress(span[0] + (span[1] - span[0]) * done / len(keep))
-        if classify is not None:
-            series, kind, col_notes = classify(i, label)
-        elif isinstance(cells.frame, pa.Table):
-            series, kind, col_notes = _classify_read(
-                cells.frame.column(i), label, decimal, thousands
-            )
-        else:
-            series, kind, col_notes = classify_text(
-                cells.frame.iloc[:, i], label, decimal, thousands, from_workbook=from_workbook
-            )
-        columns[label] = series.reset_index(drop=True)
-        kinds[label] = kind
-        notes.extend(col_notes)
-    # copy=False keeps each column as built (no stacking of same-dtype columns into one
-    # block, which would copy every number column once more; the engine reads by column).
-    data = pd.DataFrame(columns, index=pd.RangeIndex(cells.rows), copy=False)
-    if list(data.columns) != labels:  # no columns at all
-        data = pd.DataFrame(index=pd.RangeIndex(cells.rows))
-    renamed = [f"'{h}' as '{lab}'" for h, lab in zip(headers, labels, strict=True) if h != lab]
-    if renamed:
-        notes.append("Column names repeated or blank, shown as: " + ", ".join(renamed) + ".")
-    return Table(data, headers, kinds, Path(path), used, notes, sheets)
-
-
 def _classify_read(column: pa.ChunkedArray, label: str, decimal: str, thousands: str):
     """A text-file column: numbers read directly are final (``_direct_numbers_hold``
     checked them), text goes through the rules of ``kinds``."""
@@ -618,44 +684,3 @@ def _classify_read(column: pa.ChunkedArray, label: str, decimal: str, thousands:
         notes = [decimal_comma_note(label)] if decimal == "," else []
         return pd.Series(arrow_to_numpy(column)), ColumnKind.NUMBER, notes
     return classify_arrow(column, label, decimal, thousands)
-
-
-class _Cells:
-    """Row and column tests over either a DataFrame or an Arrow table."""
-
-    def __init__(self, frame: pd.DataFrame | pa.Table) -> None:
-        self.frame = frame
-
-    @property
-    def rows(self) -> int:
-        return len(self.frame) if isinstance(self.frame, pd.DataFrame) else self.frame.num_rows
-
-    @property
-    def width(self) -> int:
-        return self.frame.shape[1]
-
-    def drop_empty_tail(self, bare_tail=None) -> None:
-        frame = self.frame
-        if not self.width or not self.rows:
-            return
-        if isinstance(frame, pd.DataFrame):
-            filled = frame.notna().to_numpy().any(axis=1)
-        else:
-            if any(col[len(col) - 1].is_valid for col in frame.columns):
-                return  # the usual case, told from the last row alone
-            filled = np.zeros(self.rows, bool)
-            for col in frame.columns:
-                filled |= np.asarray(col.is_valid())
-        if filled[-1]:
-            return
-        last = np.flatnonzero(filled)
-        end = int(last[-1]) + 1 if len(last) else 0
-        if bare_tail is not None:
-            end = self.rows - bare_tail(self.rows - end)
-        self.frame = frame.iloc[:end] if isinstance(frame, pd.DataFrame) else frame.slice(0, end)
-
-    def has_values(self, i: int) -> bool:
-        if isinstance(self.frame, pd.DataFrame):
-            return bool(self.frame.iloc[:, i].notna().any())
-        column = self.frame.column(i)
-        return column.null_count < len(column)

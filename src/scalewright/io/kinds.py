@@ -10,6 +10,7 @@ from __future__ import annotations
 
 import datetime as dt
 import re
+from dataclasses import dataclass
 
 import numpy as np
 import pandas as pd
@@ -17,6 +18,9 @@ import pyarrow as pa
 import pyarrow.compute as pc
 
 from .options import ColumnKind
+
+# What classifying a column gives: the converted values, the kind, and notes for the user.
+Classified = tuple[pd.Series, ColumnKind, list[str]]
 
 # Spreadsheet and statistics exports commonly write these for "no value" (common practice).
 MISSING_MARKERS = frozenset({"na", "n/a", "nan", "null", "#n/a", "none"})
@@ -32,6 +36,25 @@ _MARK_NAMES = {",": "commas", ".": "points", " ": "spaces", "'": "apostrophes"}
 # One unit for every date column, whatever the source, so values compare across files;
 # microseconds cover years 1..9999 (nanoseconds stop at 2262).
 DATE_DTYPE = "datetime64[us]"
+
+
+def digit_code_reason(cells: int, shortest: int, longest: int, leading_zero: bool) -> str | None:
+    """Why a column whose every non-blank cell is a string of digits holds codes rather
+    than quantities, or None when it holds numbers.
+
+    The one place these rules live (every reading path gathers the four facts its own way
+    and asks here): a leading zero, more digits than a double holds exactly, or two or
+    more values all of one width of ``FIXED_WIDTH_CODE_DIGITS`` digits or more.
+    """
+    if leading_zero:
+        return "some values start with a zero"
+    if longest > MAX_NUMBER_DIGITS:
+        return f"some values have more than {MAX_NUMBER_DIGITS} digits"
+    if cells > 1 and shortest == longest >= FIXED_WIDTH_CODE_DIGITS:
+        return f"all values have {longest} digits"
+    return None
+
+
 _CODE = re.compile(r"[A-Za-z0-9][A-Za-z0-9_\-/.#:]*")
 _ISO_DATE = r"\d{4}-\d{2}-\d{2}(?:[ T]\d{2}:\d{2}(?::\d{2}(?:\.\d+)?)?)?"
 _DMY_DATE = r"(\d{1,2})([/.\-])(\d{1,2})\2(\d{4})(?: (\d{1,2}:\d{2}(?::\d{2})?))?"
@@ -79,10 +102,10 @@ def _all_contain(values: pd.Series, pattern: str, head: int = 1000) -> bool:
     return len(values) <= head or bool(values.iloc[head:].str.contains(pattern).all())
 
 
-def _plain_numbers(arr: pa.Array | pa.ChunkedArray) -> pd.Series | None:
+def _plain_numbers(arr: pa.Array | pa.ChunkedArray, thousands: str = "") -> pd.Series | None:
     """The common case at full speed: every cell is a plain number such as ``-12.5``.
 
-    Returns None whenever the column needs a closer look (codes, marks, words), and the
+    Digit codes (``_digit_code``) are told apart before this is asked. Returns None whenever the column needs a closer look (codes, marks, words), and the
     general rules below then decide. The text checks run on the Arrow buffers: once the
     cast has succeeded every cell is ASCII, so bytes are characters.
     """
@@ -97,16 +120,12 @@ def _plain_numbers(arr: pa.Array | pa.ChunkedArray) -> pd.Series | None:
         return None  # "nan"/"inf" written out: leave them to the marker rules
     digits_only = pc.ascii_is_decimal(arr)
     if pc.any(digits_only).as_py():
-        widths = pc.filter(pc.binary_length(arr), digits_only)
-        shortest, longest = pc.min_max(widths).values()
-        if longest.as_py() > MAX_NUMBER_DIGITS:
-            return None  # long digit strings are codes
-        if (
-            pc.all(digits_only).as_py()
-            and shortest.as_py() == longest.as_py() >= FIXED_WIDTH_CODE_DIGITS
-        ):
-            return None
+        longest = pc.max(pc.filter(pc.binary_length(arr), digits_only)).as_py()
+        if longest > MAX_NUMBER_DIGITS:
+            return None  # long digit strings are codes (see ``_as_number``)
     text = _StringBytes(arr)
+    if thousands == "." and text.contains_any(b"."):
+        return None  # a point between thousands is no decimal point ("1.500" is 1500)
     if text.any_leading_zero():
         return None
     # Arrow's cast accepts exactly [+-]digits[.digits][e[+-]digits] (no spaces, no marks),
@@ -211,10 +230,13 @@ def classify_text(
     """
     s = s.astype("str")
     if not from_workbook:
-        fast = _plain_numbers(pa.array(s, type=pa.large_string()))
+        arr = pa.array(s, type=pa.large_string())
+        if _digit_code(arr):
+            return s, ColumnKind.IDENTIFIER, []
+        fast = _plain_numbers(arr, thousands)
         if fast is not None:
             return fast.set_axis(s.index), ColumnKind.NUMBER, []
-    return _classify_rest(s, label, decimal, thousands, from_workbook)
+    return _classify_rest(_TextCells.of(s, label), decimal, thousands, from_workbook)
 
 
 def classify_arrow(
@@ -229,15 +251,15 @@ def classify_arrow(
     n = len(arr)
     if arr.null_count == n:
         return empty_column(n), ColumnKind.EMPTY, []
-    fast = _plain_numbers(arr)
-    if fast is not None:
-        return fast, ColumnKind.NUMBER, []
     if _digit_code(arr):
         return text_series(arr), ColumnKind.IDENTIFIER, []
+    fast = _plain_numbers(arr, thousands)
+    if fast is not None:
+        return fast, ColumnKind.NUMBER, []
     dates = _iso_dates(arr)
     if dates is not None:
         return dates, ColumnKind.DATE, []
-    return _classify_rest(text_series(arr), label, decimal, thousands, False)
+    return _classify_rest(_TextCells.of(text_series(arr), label), decimal, thousands, False)
 
 
 def text_series(arr: pa.Array | pa.ChunkedArray) -> pd.Series:
@@ -246,20 +268,16 @@ def text_series(arr: pa.Array | pa.ChunkedArray) -> pd.Series:
 
 
 def _digit_code(arr: pa.Array | pa.ChunkedArray) -> bool:
-    """Every cell is a digit string and the digit rules of ``_classify_rest`` make the
-    column an identifier (leading zero, too long, or all one width of 8 digits or more)."""
-    digits = pc.ascii_is_decimal(arr)
-    if not pc.all(digits).as_py():
+    """Every cell is a digit string and ``digit_code_reason`` makes the column an
+    identifier; told on the Arrow buffers."""
+    if arr.null_count == len(arr) or not pc.all(pc.ascii_is_decimal(arr)).as_py():
         return False
     shortest, longest = (v.as_py() for v in pc.min_max(pc.binary_length(arr)).values())
     if not shortest:
         return False  # an empty string is a blank cell, not a digit string
-    if _StringBytes(arr).any_leading_zero():
-        return True
-    if longest > MAX_NUMBER_DIGITS:
-        return True
     present = len(arr) - arr.null_count
-    return present > 1 and shortest == longest >= FIXED_WIDTH_CODE_DIGITS
+    leading_zero = _StringBytes(arr).any_leading_zero()
+    return digit_code_reason(present, shortest, longest, leading_zero) is not None
 
 
 def _iso_dates(arr: pa.Array | pa.ChunkedArray) -> pd.Series | None:
@@ -285,24 +303,41 @@ def _iso_dates(arr: pa.Array | pa.ChunkedArray) -> pd.Series | None:
     return pd.Series(arrow_to_numpy(stamps).astype(DATE_DTYPE))
 
 
-def _classify_rest(s: pd.Series, label, decimal, thousands, from_workbook):
+@dataclass(frozen=True)
+class _TextCells:
+    """A column of text cells (missing as NA) seen the ways the general rules need it."""
+
+    s: pd.Series  # the cells as given
+    label: str
+    stripped: pd.Series
+    blank: pd.Series  # missing, or only spaces
+    values: pd.Series  # the non-blank cells, stripped
+
+    @classmethod
+    def of(cls, s: pd.Series, label: str) -> _TextCells:
+        stripped = s.str.strip()
+        blank = stripped.isna() | (stripped == "")
+        return cls(s, label, stripped, blank, stripped[~blank])
+
+    def digit_code_reason(self) -> str | None:
+        """``digit_code_reason`` when every non-blank cell is a digit string, else None."""
+        values = self.values
+        if values.empty or not _all_match(values, r"\d+"):
+            return None
+        width = values.str.len()
+        leading_zero = bool(values.str.match(r"0\d").any())
+        return digit_code_reason(len(values), int(width.min()), int(width.max()), leading_zero)
+
+
+def _classify_rest(cells: _TextCells, decimal, thousands, from_workbook):
     """The general rules, for columns the plain-number shortcut did not settle."""
-    stripped = s.str.strip()
-    blank = stripped.isna() | (stripped == "")
-    values = stripped[~blank]
+    s, blank, values = cells.s, cells.blank, cells.values
     if values.empty:
         return empty_column(len(s), s.index), ColumnKind.EMPTY, []
+    if cells.digit_code_reason() is not None:
+        return s, ColumnKind.IDENTIFIER, []
 
-    if _all_match(values, r"\d+"):
-        width = values.str.len()
-        if bool(values.str.match(r"0\d").any()):
-            return s, ColumnKind.IDENTIFIER, []
-        if int(width.max()) > MAX_NUMBER_DIGITS:
-            return s, ColumnKind.IDENTIFIER, []
-        if len(values) > 1 and int(width.min()) == int(width.max()) >= FIXED_WIDTH_CODE_DIGITS:
-            return s, ColumnKind.IDENTIFIER, []
-
-    number = _as_number(s, stripped, blank, values, label, decimal, thousands, from_workbook)
+    number = _as_number(cells, decimal, thousands, from_workbook)
     if number is not None:
         return number
 
@@ -313,7 +348,7 @@ def _classify_rest(s: pd.Series, label, decimal, thousands, from_workbook):
         out[~blank] = (lowered == "true").to_numpy()
         return out, ColumnKind.BOOLEAN, []
 
-    dates = _as_date(s, stripped, blank, values, label)
+    dates = _as_date(cells)
     if dates is not None:
         return dates
 
@@ -326,7 +361,8 @@ def _classify_rest(s: pd.Series, label, decimal, thousands, from_workbook):
     return s, ColumnKind.TEXT, []
 
 
-def _as_number(s, stripped, blank, values, label, decimal, thousands, from_workbook):
+def _as_number(cells: _TextCells, decimal, thousands, from_workbook):
+    s, values, label = cells.s, cells.values, cells.label
     pattern = number_pattern(decimal, thousands)
     head = values.iloc[:1000]
     head = head[~head.str.lower().isin(MISSING_MARKERS)]
@@ -381,8 +417,9 @@ def _as_number(s, stripped, blank, values, label, decimal, thousands, from_workb
     return full, ColumnKind.NUMBER, notes
 
 
-def _as_date(s, stripped, blank, values, label):
+def _as_date(cells: _TextCells):
     """ISO dates, yyyy/mm/dd, or dd/mm/yyyy-like dates in one consistent order."""
+    s, values, label = cells.s, cells.values, cells.label
     notes: list[str] = []
     if _all_match(values, _ISO_DATE):
         fmt = "ISO8601"

@@ -36,6 +36,9 @@ class ReadOptions:
     thousands: str | None = None
     header_row: int | None = None
     sheet: str | None = None
+    # Kind corrections: column label -> "number", "identifier", "text" or "date", applied
+    # where the cells allow it (see ``io.corrections``); {} keeps every guess.
+    kinds: dict[str, str] = field(default_factory=dict)
 
     def __post_init__(self) -> None:
         _check_value("encoding", self.encoding, str)
@@ -70,10 +73,15 @@ class ReadOptions:
             raise ValueError("thousands: cannot be the same mark as decimal")
         if self.header_row is not None and self.header_row < 0:
             raise ValueError(f"header_row: must be 0 or more, not {self.header_row}")
+        object.__setattr__(self, "kinds", _checked_kinds(self.kinds))
 
     def to_dict(self) -> dict:
-        """JSON-ready: plain strings, ints and None."""
-        return asdict(self)
+        """JSON-ready: plain strings, ints and None. ``kinds`` only when there are
+        corrections, so a project without any is written as before."""
+        d = asdict(self)
+        if not self.kinds:
+            del d["kinds"]
+        return d
 
     @classmethod
     def from_dict(cls, d: dict) -> ReadOptions:
@@ -101,6 +109,25 @@ class ColumnKind(StrEnum):
     BOOLEAN = "boolean"
     TEXT = "text"
     EMPTY = "empty"
+
+
+# The kinds a user may ask a column to be read as (``ReadOptions.kinds``).
+CORRECTABLE_KINDS = (ColumnKind.NUMBER, ColumnKind.IDENTIFIER, ColumnKind.TEXT, ColumnKind.DATE)
+
+
+def _checked_kinds(kinds: object) -> dict[str, str]:
+    """``ReadOptions.kinds`` checked: a label (text) to one of ``CORRECTABLE_KINDS``."""
+    if not isinstance(kinds, dict):
+        raise ValueError(f"kinds: expected an object (column -> kind), not {kinds!r}")
+    words = ", ".join(CORRECTABLE_KINDS)
+    out: dict[str, str] = {}
+    for label, kind in kinds.items():
+        if not isinstance(label, str) or not label:
+            raise ValueError(f"kinds: a column name must be non-empty text, not {label!r}")
+        if kind not in CORRECTABLE_KINDS:
+            raise ValueError(f"kinds: column '{label}': {kind!r} is not one of {words}")
+        out[label] = str(ColumnKind(kind))
+    return out
 
 
 @dataclass

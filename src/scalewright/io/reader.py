@@ -8,8 +8,8 @@ from pathlib import Path
 
 from ..errors import ReadError
 from .csv_reader import read_text_table
+from .file_types import SNIFF_BYTES, check_extension, check_text_content
 from .options import (
-    SUPPORTED_READ,
     TEXT_SUFFIXES,
     CancelCheck,
     Detection,
@@ -27,14 +27,20 @@ def _checked(path) -> Path:
         raise ReadError(path, "the file does not exist")
     if path.is_dir():
         raise ReadError(path, "this is a folder, not a file")
-    suffix = path.suffix.lower()
-    if suffix not in SUPPORTED_READ:
-        raise ReadError(
-            path,
-            f"cannot read '{suffix or 'no extension'}' files; "
-            f"open one of {', '.join(SUPPORTED_READ)}",
-        )
+    check_extension(path)
     return path
+
+
+def _check_content(path: Path, options: ReadOptions) -> None:
+    """A text file that is really a PDF, a workbook or prose is refused before parsing."""
+    if path.suffix.lower() not in TEXT_SUFFIXES:
+        return
+    try:
+        with open(path, "rb") as fh:
+            head = fh.read(SNIFF_BYTES)
+    except OSError as err:
+        raise ReadError(path, f"the file cannot be opened ({err.strerror})") from None
+    check_text_content(path, head, delimiter_given=options.delimiter is not None)
 
 
 def read_table(
@@ -51,6 +57,7 @@ def read_table(
     """
     path = _checked(path)
     options = options or ReadOptions()
+    _check_content(path, options)
     before = _stamp(path)
     size, sha256 = fingerprint(path)
     if path.suffix.lower() in TEXT_SUFFIXES:
@@ -71,6 +78,7 @@ def detect(path, options: ReadOptions | None = None, *, preview_rows: int = 50) 
     """Read only the start of the file: what would be detected and how the rows would load."""
     path = _checked(path)
     options = options or ReadOptions()
+    _check_content(path, options)
     if path.suffix.lower() in TEXT_SUFFIXES:
         table = read_text_table(path, options, preview_rows=preview_rows)
     elif path.suffix.lower() == ".parquet":

@@ -15,10 +15,11 @@ import pandas as pd
 import python_calamine as calamine
 
 from ..errors import Cancelled, ReadError
-from .csv_reader import build_table
+from .corrections import workbook_text
 from .detect import is_title_like
 from .kinds import cell_text, classify_cells
 from .options import CancelCheck, Progress, ReadOptions, Table
+from .table import RawTable, build_table
 
 _ZIP_MAGIC = b"PK\x03\x04"
 _OLE_MAGIC = b"\xd0\xcf\x11\xe0\xa1\xb1\x1a\xe1"
@@ -197,26 +198,25 @@ def read_workbook_table(
     n_rows = int(keep_rows[-1]) + 1 if len(keep_rows) else 0
     body = body[:n_rows]
 
-    def classify(i, label):
+    def classify(_cells, i, label):
         return classify_cells(body[:, i], label)
 
     frame = pd.DataFrame(body_filled[:n_rows].astype(object)).where(body_filled[:n_rows])
-    used = ReadOptions(None, None, None, None, header_row, name)
-    return build_table(
+
+    def text(_cells, i):
+        return workbook_text(body[:, i])
+
+    raw = RawTable(
         path,
         frame.reindex(columns=range(width)),
         headers,
-        used,
+        ReadOptions(header_row=header_row, sheet=name, kinds=options.kinds),
+        classify,
+        text,
         notes,
         sheets,
-        ".",
-        "",
-        from_workbook=True,
-        classify=classify,
-        progress=progress,
-        cancelled=cancelled,
-        span=(0.5, 1.0),
     )
+    return build_table(raw, progress=progress, cancelled=cancelled, span=(0.5, 1.0))
 
 
 def _find_header(grid, filled, first_col, last_col) -> int:

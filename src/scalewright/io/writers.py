@@ -9,11 +9,14 @@ in ``benchmarks/bench_io.py``.
 from __future__ import annotations
 
 import base64
+import contextlib
 import csv
 import datetime as dt
 import hashlib
 import io
 import math
+import shutil
+import tempfile
 from pathlib import Path
 
 import numpy as np
@@ -26,7 +29,7 @@ import xlsxwriter.exceptions
 from xlsxwriter.worksheet import Worksheet
 
 from ..errors import Cancelled, ReadError, WriteError
-from .atomic import atomic_path
+from .atomic import atomic_path, signals_held
 from .options import SUPPORTED_WRITE, WORKBOOK_SUFFIXES, CancelCheck, Progress
 from .parquet import write_parquet
 
@@ -100,10 +103,8 @@ def write_table(
         if progress is not None:
             progress(1.0)
         return
-    with atomic_path(path) as tmp:
-        book = _new_workbook(tmp)
+    with atomic_path(path) as tmp, _workbook(tmp, path) as book:
         _write_sheet(book, DATA_SHEET, data, headers, progress, cancelled, 0.0, 1.0, path)
-        _close(book, path)
     if progress is not None:
         progress(1.0)
 
@@ -123,8 +124,7 @@ def write_scaled_workbook(
     _check(path, data, headers)
     if path.suffix.lower() != ".xlsx":
         raise WriteError(path, "the scaled workbook must be an .xlsx file")
-    with atomic_path(path) as tmp:
-        book = _new_workbook(tmp)
+    with atomic_path(path) as tmp, _workbook(tmp, path) as book:
         _write_sheet(book, DATA_SHEET, data, headers, progress, cancelled, 0.0, 0.95, path)
         _write_sheet(
             book,
@@ -140,20 +140,45 @@ def write_scaled_workbook(
         _write_project(book, project_json)
         if cancelled is not None and cancelled():
             raise Cancelled()
-        _close(book, path)
     if progress is not None:
         progress(1.0)
 
 
-def _new_workbook(tmp: Path) -> xlsxwriter.Workbook:
-    return xlsxwriter.Workbook(str(tmp), _WORKBOOK_OPTIONS)
+@contextlib.contextmanager
+def _workbook(tmp: Path, path: Path):
+    """An xlsxwriter workbook writing to ``tmp``, closed (written out) on success.
 
-
-def _close(book: xlsxwriter.Workbook, path: Path) -> None:
+    In constant-memory mode xlsxwriter keeps each sheet's rows, and later each part of the
+    package, in temporary files that it removes only when ``close()`` succeeds. They go in
+    a folder of our own under the system's temporary folder, removed whatever happens, so
+    a failed, cancelled or stopped write leaves nothing there either.
+    """
+    scratch = None
     try:
-        book.close()
-    except (xlsxwriter.exceptions.XlsxWriterException, OSError) as err:
-        raise WriteError(path, f"the workbook could not be written ({err})") from None
+        with signals_held():  # see atomic_path: the folder is recorded before any signal
+            scratch = tempfile.mkdtemp(prefix="scalewright-workbook-")
+        book = xlsxwriter.Workbook(str(tmp), {**_WORKBOOK_OPTIONS, "tmpdir": scratch})
+        try:
+            yield book
+            book.close()
+        except (xlsxwriter.exceptions.XlsxWriterException, OSError) as err:
+            raise WriteError(path, f"the workbook could not be written ({err})") from None
+        finally:
+            _close_row_files(book)
+    finally:
+        if scratch is not None:
+            with signals_held():
+                shutil.rmtree(scratch, ignore_errors=True)
+
+
+def _close_row_files(book: xlsxwriter.Workbook) -> None:
+    """Close the sheets' row files a failed write left open (Windows cannot delete open
+    files)."""
+    for sheet in book.worksheets():
+        fh = getattr(sheet, "row_data_fh", None)
+        if fh is not None and not fh.closed:
+            with contextlib.suppress(OSError):
+                fh.close()
 
 
 def _write_sheet(book, name, data, headers, progress, cancelled, start, span, path) -> None:
@@ -170,7 +195,7 @@ def _write_sheet(book, name, data, headers, progress, cancelled, start, span, pa
         "date": book.add_format({"num_format": "yyyy-mm-dd"}),
         "datetime": book.add_format({"num_format": "yyyy-mm-dd hh:mm:ss"}),
     }
-    columns = [_prepare(path, data.iloc[:, j], headers[j], formats, sheet) for j in range(m)]
+    columns = [_prepare(path, data.iloc[:, j], headers[j], formats, sheet, j) for j in range(m)]
     for j, (_, _, _, width) in enumerate(columns):
         sheet.set_column(j, j, max(min(max(width, len(headers[j])) + 2, 60), 8))
     sheet.freeze_panes(1, 0)
@@ -196,15 +221,25 @@ def _write_sheet(book, name, data, headers, progress, cancelled, start, span, pa
 
 def _string(path, sheet, row, col, text, fmt, header) -> None:
     if len(text) > MAX_CELL_CHARS:
-        raise WriteError(
-            path,
-            f"column '{header}' row {row + 1} has {len(text):,} characters; "
-            f"a workbook cell holds at most {MAX_CELL_CHARS:,}",
-        )
+        raise _too_long(path, header, col, row, len(text))
     sheet.write_string(row, col, text, fmt)
 
 
-def _prepare(path, s: pd.Series, header: str, formats, sheet):
+def _too_long(path, header: str, col: int, sheet_row: int, length: int) -> WriteError:
+    """A cell over the workbook's limit: which one, and what to do instead."""
+    where = (
+        f"the header of column {col + 1}"
+        if sheet_row == 0
+        else f"column '{header}', row {sheet_row} of the data,"
+    )
+    return WriteError(
+        path,
+        f"{where} holds {length:,} characters; a workbook cell holds at most "
+        f"{MAX_CELL_CHARS:,}, so write a .csv or .tsv file instead",
+    )
+
+
+def _prepare(path, s: pd.Series, header: str, formats, sheet, col: int):
     """(write method, per-row values with None for missing, cell format, display width)."""
     dtype = s.dtype
     missing = s.isna().to_numpy()
@@ -216,7 +251,7 @@ def _prepare(path, s: pd.Series, header: str, formats, sheet):
         if np.nanmax(np.abs(ints), initial=0) < 2.0**53:
             vals = np.where(missing, None, s.to_numpy(dtype=object, na_value=0)).tolist()
             return sheet.write_number, vals, None, _width(s)
-        return _strings(path, s.astype("str"), header, sheet)
+        return _strings(path, s.astype("str"), header, sheet, col)
     if pd.api.types.is_float_dtype(dtype):
         x = s.to_numpy(dtype="float64", na_value=np.nan)
         obj = x.astype(object)
@@ -244,7 +279,7 @@ def _prepare(path, s: pd.Series, header: str, formats, sheet):
         return sheet.write_number, obj.tolist(), fmt, 20 if has_time else 11
     if pd.api.types.is_object_dtype(dtype):
         return _any_values(path, s, header, sheet)
-    return _strings(path, s, header, sheet)
+    return _strings(path, s, header, sheet, col)
 
 
 def _any_values(path, s: pd.Series, header: str, sheet):
@@ -271,17 +306,13 @@ def _is_missing(v: object) -> bool:
     return isinstance(v, float) and math.isnan(v)
 
 
-def _strings(path, s: pd.Series, header: str, sheet):
+def _strings(path, s: pd.Series, header: str, sheet, col: int):
     obj = s.to_numpy(dtype=object, na_value=None)
     vals = [v if v is None or isinstance(v, str) else _text(v) for v in obj]
     lengths = [len(v) for v in vals if v is not None]
     if lengths and max(lengths) > MAX_CELL_CHARS:
         row = next(i for i, v in enumerate(vals) if v is not None and len(v) > MAX_CELL_CHARS)
-        raise WriteError(
-            path,
-            f"column '{header}' row {row + 2} has more than "
-            f"{MAX_CELL_CHARS:,} characters, the most a workbook cell holds",
-        )
+        raise _too_long(path, header, col, row + 1, len(vals[row]))
     width = max(lengths[:1000], default=8)
     return sheet.write_string, vals, None, width
 

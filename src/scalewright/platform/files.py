@@ -140,16 +140,49 @@ def fit_file(
     return project, reports
 
 
-def apply_file(project: Project, data_path, target: Path, *, clip: bool = False):
+def apply_file(
+    project: Project,
+    data_path,
+    target: Path,
+    *,
+    clip: bool = False,
+    mapping: Mapping[str, str] | None = None,
+):
+    """``apply`` through DuckDB; ``mapping`` pairs file columns with fitted columns."""
+    from ..tasks import MissingFittedColumn
     from .outofcore import apply_source, connection, open_source
 
     plan = project.plan
+    mapping = dict(mapping or {})
+    pairs = dict(mapping)
+    paired = set(mapping.values())
+    for fitted in plan.columns:
+        if fitted not in paired:
+            pairs[fitted] = fitted
     with connection(Path(target).absolute().parent) as con:
-        source = open_source(con, data_path, numbers=set(plan.columns))
-        return apply_source(con, source, plan, target, clip=clip)
+        source = open_source(con, data_path, numbers=set(pairs))
+        for column, fitted in pairs.items():
+            if fitted not in plan.columns:
+                raise ColumnError(
+                    fitted,
+                    f"has no fitted parameters in the project (fitted: {', '.join(plan.columns)})",
+                )
+            if column not in source.names:
+                if column in mapping:
+                    raise ColumnError(column, f"is not in {source.path.name}")
+                raise MissingFittedColumn(
+                    column, f"was fitted in the project but is not in {source.path.name}"
+                )
+        return apply_source(con, source, plan, target, clip=clip, pairs=pairs)
 
 
-def restore_file(project: Project, data_path, target: Path, mapping: Mapping[str, str]):
+def restore_file(
+    project: Project,
+    data_path,
+    target: Path,
+    mapping: Mapping[str, str],
+    names: Mapping[str, str] | None = None,
+):
     from ..tasks import NothingToRestore, auto_mapping
     from .outofcore import connection, open_source, restore_source
 
@@ -179,4 +212,7 @@ def restore_file(project: Project, data_path, target: Path, mapping: Mapping[str
                     f"holds {kind} values in {source.path.name}, not numbers, so it cannot be "
                     "scaled or restored",
                 )
-        return restore_source(con, source, plan, pairs, target)
+        for column in names or {}:
+            if column not in pairs:
+                raise ColumnError(column, "is not restored, so --name cannot rename it")
+        return restore_source(con, source, plan, pairs, target, names=names)

@@ -454,12 +454,14 @@ def apply_source(
     *,
     clip: bool = False,
     counts_from: str = VIEW,
+    pairs: dict[str, str] | None = None,
 ):
     """Scale the opened file with ``plan`` and write ``target``; the reports.
 
     ``counts_from`` may name a table that already holds the file's fitted columns (and the
     grouping column), so that counting does not read the file again."""
-    for label in plan.columns:
+    pairs = pairs or {label: label for label in plan.columns}
+    for label in pairs:
         if label not in source.names:
             raise ColumnError(label, f"was fitted in the project but is not in {source.path.name}")
         kind = source.kinds.get(label)
@@ -470,13 +472,13 @@ def apply_source(
             )
     group_by = plan.settings.group_by
     group = source.names.get(group_by) if group_by and group_by in source.names else None
-    pairs = {source.names[label]: plan.columns[label] for label in plan.columns}
+    mapped = {source.names[label]: plan.columns[fitted] for label, fitted in pairs.items()}
     columns = [source.names[label] for label in source.labels]
-    select = select_columns(columns, pairs, exp.to_table(VIEW), clip=clip, group=group)
+    select = select_columns(columns, mapped, exp.to_table(VIEW), clip=clip, group=group)
     reports = count_reports(
         con,
         source,
-        {source.names[lab]: (lab, fc) for lab, fc in plan.columns.items()},
+        {source.names[lab]: (fitted, plan.columns[fitted]) for lab, fitted in pairs.items()},
         group,
         restoring=False,
         clip=clip,
@@ -493,13 +495,25 @@ def apply_source(
     return reports
 
 
-def restore_source(con, source: DuckSource, plan: FittedPlan, pairs: dict[str, str], target: Path):
-    """Restore the opened file's columns (label -> fitted column) and write ``target``."""
+def restore_source(
+    con,
+    source: DuckSource,
+    plan: FittedPlan,
+    pairs: dict[str, str],
+    target: Path,
+    *,
+    names: dict[str, str] | None = None,
+):
+    """Restore the opened file's columns (label -> fitted column) and write ``target``;
+    ``names`` gives restored columns new names in the output."""
     group_by = plan.settings.group_by
     group = source.names.get(group_by) if group_by and group_by in source.names else None
     mapped = {source.names[label]: plan.columns[fitted] for label, fitted in pairs.items()}
     columns = [source.names[label] for label in source.labels]
-    select = select_columns(columns, mapped, exp.to_table(VIEW), restoring=True, group=group)
+    renamed = {source.names[label]: new for label, new in (names or {}).items()}
+    select = select_columns(
+        columns, mapped, exp.to_table(VIEW), restoring=True, group=group, renamed=renamed
+    )
     reports = count_reports(
         con,
         source,

@@ -31,6 +31,16 @@ def now_iso() -> str:
     return dt.datetime.now(dt.UTC).isoformat(timespec="seconds")
 
 
+@dataclass(frozen=True)
+class FittedOn:
+    """The data one column's parameters were fitted on: the file's size and SHA-256 as it
+    was read, and the number of rows fitted."""
+
+    size: int | None
+    sha256: str | None
+    rows: int
+
+
 @dataclass
 class Project:
     """Everything needed to re-apply or reverse a scaling, without the data itself."""
@@ -47,9 +57,22 @@ class Project:
     created: str = field(default_factory=now_iso)
     modified: str = field(default_factory=now_iso)
     app_version: str = __version__
+    # Columns whose parameters were fitted on other data than the project's source as
+    # recorded above (saved parameters kept after the file changed, beside columns fitted
+    # again): label -> what they were fitted on. Saved as the column's "fitted_on".
+    column_fitted_on: dict[str, FittedOn] = field(default_factory=dict)
     # The file this project was loaded from (a .swproj or a scaled workbook), so that no
     # output is written over it. Not saved, and not part of what makes two projects equal.
     loaded_from: Path | None = field(default=None, compare=False)
+
+    def fitted_on(self, label: str) -> FittedOn | None:
+        """What the column's parameters were fitted on (None when it is not fitted)."""
+        if self.plan is None or label not in self.plan.columns:
+            return None
+        own = self.column_fitted_on.get(label)
+        if own is not None:
+            return own
+        return FittedOn(self.source_size, self.source_sha256, self.plan.n_rows)
 
 
 # =========================================================================== writing
@@ -66,6 +89,8 @@ def _plain(value: Any, where: str) -> Any:
     """A parameter or option value as a JSON-ready Python value (numbers kept exact)."""
     if isinstance(value, bool) or value is None or isinstance(value, str):
         return value
+    if isinstance(value, list | tuple) or getattr(value, "ndim", 0) == 1:
+        return [_plain(v, f"{where}[{i}]") for i, v in enumerate(value)]
     if hasattr(value, "dtype") and getattr(value.dtype, "kind", "") == "b":
         return bool(value)
     if isinstance(value, int) or (hasattr(value, "dtype") and value.dtype.kind in "iu"):
@@ -148,6 +173,9 @@ def project_to_dict(project: Project, project_path: Path | None = None) -> dict[
                 for key, ps in fitted.groups.items()
             }
             entry["warnings"] = [str(w) for w in fitted.warnings]
+            own = project.column_fitted_on.get(label)
+            if own is not None:
+                entry["fitted_on"] = {"size": own.size, "sha256": own.sha256, "rows": own.rows}
         columns[label] = entry
     return {
         "format": FORMAT_NAME,

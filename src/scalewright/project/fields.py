@@ -68,6 +68,13 @@ def number(v: Any, path: str) -> float:
     return value
 
 
+def numbers(v: Any, path: str) -> list[float]:
+    """A non-empty list of finite numbers (a parameter such as fitted quantiles)."""
+    if not isinstance(v, list) or not v:
+        raise Invalid(path, "must be a non-empty list of numbers")
+    return [number(item, f"{path}[{i}]") for i, item in enumerate(v)]
+
+
 def yes_no(v: Any, path: str) -> bool:
     if not isinstance(v, bool):
         raise Invalid(path, "must be true or false")

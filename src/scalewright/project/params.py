@@ -8,14 +8,14 @@ from collections.abc import Mapping
 from typing import Any
 
 from ..engine import Method, ParamError, ParamSet
-from .fields import Invalid, get, number, obj, only, text, whole, yes_no
+from .fields import Invalid, get, number, numbers, obj, only, text, whole, yes_no
 
-_READERS = {"number": number, "int": whole, "bool": yes_no, "text": text}
+_READERS = {"number": number, "numbers": numbers, "int": whole, "bool": yes_no, "text": text}
 
 
 def param_kinds(method: Method, params: Mapping[str, Any] | None = None) -> dict[str, str]:
-    """The parameters ``method`` stores for ``params`` (name -> "number", "int", "text"
-    or "bool"); parameters that depend on others (a power method's mean and sd when
+    """The parameters ``method`` stores for ``params`` (name -> "number", "numbers",
+    "int", "text" or "bool"); parameters that depend on others (a power method's mean and sd when
     standardized) are read from ``params`` first."""
     return {s.name: s.kind for s in method.params_present(params or {})}
 

@@ -40,7 +40,8 @@ def options_text(options: Mapping[str, Any]) -> str:
 def parameter_sheet(plan: FittedPlan) -> pd.DataFrame:
     """One row per fitted parameter (and per group), readable by a person.
 
-    Values keep full precision; a yes/no parameter reads ``yes``/``no``.
+    Values keep full precision; a yes/no parameter reads ``yes``/``no``; a list of
+    numbers (fitted quantiles) takes one row per number, named ``name[i]``.
     """
     rows: list[list[Any]] = []
     for label, fc in plan.columns.items():
@@ -48,7 +49,15 @@ def parameter_sheet(plan: FittedPlan) -> pd.DataFrame:
         sets = [(ALL_ROWS if not fc.groups else UNSEEN_GROUPS, fc.pooled)]
         sets += [(str(k), ps) for k, ps in fc.groups.items()]
         for group, ps in sets:
-            items = list(ps.params.items()) or [("(none)", "")]
+            items = [
+                item
+                for name, value in ps.params.items()
+                for item in (
+                    [(f"{name}[{i}]", v) for i, v in enumerate(value)]
+                    if isinstance(value, list)
+                    else [(name, value)]
+                )
+            ] or [("(none)", "")]
             for name, value in items:
                 if isinstance(value, bool):
                     value = "yes" if value else "no"

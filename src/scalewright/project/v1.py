@@ -8,7 +8,7 @@ from typing import Any
 from ..engine import ColumnChoice, FitSettings, FittedColumn, FittedPlan, Method, get_method
 from ..errors import ScalewrightError
 from ..io import ReadOptions
-from .document import Project
+from .document import FittedOn, Project
 from .fields import (
     SHA256,
     Invalid,
@@ -37,7 +37,15 @@ TOP = {
     "columns",
 }
 PARAM_SET = {"params", "n", "min", "max"}
-COLUMN = {"method", "options", "n_missing", "n_infinite", "groups", "warnings"} | PARAM_SET
+COLUMN = {
+    "method",
+    "options",
+    "n_missing",
+    "n_infinite",
+    "groups",
+    "warnings",
+    "fitted_on",  # optional: only when the column was fitted on other data
+} | PARAM_SET
 
 
 def load(doc: dict[str, Any]) -> tuple[Project, str | None]:
@@ -49,15 +57,21 @@ def load(doc: dict[str, Any]) -> tuple[Project, str | None]:
     source, relative, size, sha = _source(get(doc, "source", ""))
     read_options = _read_options(obj(get(doc, "read_options", ""), "read_options"))
     columns, headers = _table(obj(get(doc, "table", ""), "table"))
+    for label in read_options.kinds:  # kind corrections (absent in older files: none)
+        if label not in columns:
+            raise Invalid(f"read_options.kinds.{label}", "is not a column of the table")
     settings, rows_fitted = _fit(obj(get(doc, "fit", ""), "fit"), set(columns))
     fitted = rows_fitted is not None
     choices: dict[str, ColumnChoice] = {}
     plan_columns: dict[str, FittedColumn] = {}
+    column_fitted_on: dict[str, FittedOn] = {}
     for label, raw in obj(get(doc, "columns", ""), "columns").items():
         choice, fc = _column(label, raw, set(columns), settings, fitted)
         choices[label] = choice
         if fc is not None:
             plan_columns[label] = fc
+            if "fitted_on" in raw:
+                column_fitted_on[label] = _fitted_on(raw["fitted_on"], f"columns.{label}")
     plan = FittedPlan(plan_columns, settings, rows_fitted) if fitted else None  # type: ignore[arg-type]
     project = Project(
         source=source,
@@ -72,8 +86,21 @@ def load(doc: dict[str, Any]) -> tuple[Project, str | None]:
         created=created,
         modified=modified,
         app_version=app_version,  # type: ignore[arg-type]
+        column_fitted_on=column_fitted_on,
     )
     return project, relative
+
+
+def _fitted_on(raw: Any, column_path: str) -> FittedOn:
+    path = f"{column_path}.fitted_on"
+    d = obj(raw, path)
+    only(d, {"size", "sha256", "rows"}, path)
+    size = whole(get(d, "size", path), f"{path}.size", minimum=0, nullable=True)
+    sha = text(get(d, "sha256", path), f"{path}.sha256", nullable=True)
+    if sha is not None and not SHA256.fullmatch(sha):
+        raise Invalid(f"{path}.sha256", "must be 64 lowercase hexadecimal digits")
+    rows = whole(get(d, "rows", path), f"{path}.rows", minimum=0)
+    return FittedOn(size, sha, rows)  # type: ignore[arg-type]
 
 
 def _source(raw: Any) -> tuple[Path | None, str | None, int | None, str | None]:
