@@ -318,3 +318,20 @@ def test_sql_fit_round_trip_through_a_platform_result(folder, capsys):
         pytest.fail("the rounds did not finish")
     made = load_project(folder / "platform.swproj")
     compare_plans(made.plan, load_project(folder / "local.swproj").plan)
+
+
+def test_quantile_scaling_is_refused_by_the_aggregate_fit_with_a_reason(folder, capsys):
+    status = run(
+        "fit",
+        folder / "harvest_2025.csv",
+        "-m",
+        "yield_kg=quantile",
+        "-p",
+        folder / "q.swproj",
+        "--engine",
+        "duckdb",
+    )
+    assert status == 1
+    err = capsys.readouterr().err
+    assert "yield_kg" in err and "fit it in memory" in err
+    assert not (folder / "q.swproj").exists()

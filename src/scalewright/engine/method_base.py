@@ -358,20 +358,6 @@ class LinearMethod(Method):
         ops += [(np.multiply, s.divide, 1.0), (np.add, s.subtract, 0.0)]
         return _in_steps(y, out, ops)
 
-
-def _in_steps(x: np.ndarray, out: np.ndarray, ops) -> np.ndarray:
-    """Apply ``(ufunc, constant, identity)`` steps in order, skipping a step whose constant
-    is its identity; the first step reads ``x``, the rest work in place (one pass each)."""
-    source = x
-    for ufunc, constant, identity in ops:
-        if constant == identity:
-            continue
-        ufunc(source, constant, out=out)
-        source = out
-    if source is x:
-        np.copyto(out, x)
-    return out
-
     def sql_forward(self, x, params):
         from . import sql_terms as S
 
@@ -399,6 +385,20 @@ def _in_steps(x: np.ndarray, out: np.ndarray, ops) -> np.ndarray:
         if s.subtract != 0.0:
             out = S.add(out, S.num(s.subtract))
         return out
+
+
+def _in_steps(x: np.ndarray, out: np.ndarray, ops) -> np.ndarray:
+    """Apply ``(ufunc, constant, identity)`` steps in order, skipping a step whose constant
+    is its identity; the first step reads ``x``, the rest work in place (one pass each)."""
+    source = x
+    for ufunc, constant, identity in ops:
+        if constant == identity:
+            continue
+        ufunc(source, constant, out=out)
+        source = out
+    if source is x:
+        np.copyto(out, x)
+    return out
 
 
 def _through_nonfinite(x, func, params, passes_nonfinite: bool, out=None) -> np.ndarray:

@@ -33,7 +33,7 @@ from ..io.kinds import MISSING_MARKERS
 from .dialects import for_dialect
 from .duck_fit import fetch_rows, fit_in_duckdb
 from .fit_query import FitColumn, FitSpec
-from .fitting import canonical_key
+from .fitting import canonical_key, check_needs
 from .names import platform_names
 from .select import key_condition, mapped_body, select_columns
 
@@ -244,6 +244,7 @@ def fit_source(
     for label, choice in choices.items():
         if choice.method == "none":
             continue
+        check_needs(label, get_method(choice.method))
         columns.append(
             FitColumn(
                 len(columns) + 1,
