@@ -25,7 +25,7 @@ from pathlib import Path
 
 from sqlglot import exp
 
-from ..engine import MAX_GROUPS, ColumnReport, FitSettings, FittedPlan, get_method
+from ..engine import ColumnReport, FitSettings, FittedPlan, get_method
 from ..engine import sql_terms as S
 from ..errors import ColumnError, ReadError, ScalewrightError, WriteError
 from ..io import ColumnKind, ReadOptions, atomic_path, detect
@@ -534,11 +534,3 @@ def _label_of(source: DuckSource, name: str) -> str:
         if n == name:
             return label
     return name
-
-
-def group_count_check(keys: list[str], column: str) -> None:
-    if len(keys) > MAX_GROUPS:
-        raise ColumnError(
-            column,
-            f"has {len(keys):,} different values; grouping works with at most {MAX_GROUPS:,}",
-        )
