@@ -47,8 +47,9 @@ def test_workbook_saved_under_a_csv_name(tmp_path, awkward_xlsx):
     expect(
         path,
         "this is a workbook saved under a '.csv' name; Scalewright opens tables: CSV (.csv), "
-        "TSV (.tsv), delimited text (.txt), Workbook (.xlsx, .xlsm), older workbook (.xls) "
-        "and OpenDocument spreadsheet (.ods). Rename it to end in .xlsx to open it",
+        "TSV (.tsv), delimited text (.txt), Workbook (.xlsx, .xlsm), older workbook (.xls), "
+        "OpenDocument spreadsheet (.ods) and Parquet (.parquet). Rename it to end in .xlsx "
+        "to open it",
     )
 
 
@@ -59,7 +60,7 @@ def test_wrong_extension(tmp_path):
         path,
         "this type of file ('.pdf', a PDF document) is not supported; Scalewright opens "
         "tables: CSV (.csv), TSV (.tsv), delimited text (.txt), Workbook (.xlsx, .xlsm), "
-        "older workbook (.xls) and OpenDocument spreadsheet (.ods)",
+        "older workbook (.xls), OpenDocument spreadsheet (.ods) and Parquet (.parquet)",
     )
 
 

@@ -19,7 +19,7 @@ from .options import DELIMITERS, SUPPORTED_READ
 
 SUPPORTED_WORDS = (
     "CSV (.csv), TSV (.tsv), delimited text (.txt), Workbook (.xlsx, .xlsm), "
-    "older workbook (.xls) and OpenDocument spreadsheet (.ods)"
+    "older workbook (.xls), OpenDocument spreadsheet (.ods) and Parquet (.parquet)"
 )
 
 # What a user may have picked by mistake, by extension (common practice: the usual uses
