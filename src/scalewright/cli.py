@@ -66,6 +66,15 @@ examples:
   scalewright restore harvest.swproj predicted_yield_scaled.csv --as predicted_yield=yield_kg \\
       --name predicted_yield=predicted_yield_kg -o predicted_yield_kg.csv"""
 
+SQL_EXAMPLES = """\
+dialects: duckdb, postgres, spark, snowflake, bigquery, tsql
+
+examples:
+  scalewright sql harvest.swproj --dialect spark --table orchard_db.harvest_2026
+  scalewright sql harvest.swproj --restore --dialect postgres --table predictions
+  scalewright sql harvest.swproj --fit --dialect snowflake --table harvest > fit.sql
+  scalewright fit harvest.swproj --from-sql-result fit_result.csv -p harvest_platform.swproj"""
+
 SHOW_EXAMPLES = """\
 examples:
   scalewright show harvest.swproj
@@ -78,6 +87,16 @@ def _add_output(p: argparse.ArgumentParser, metavar: str, help: str, required: b
 
 def _add_sheet(p: argparse.ArgumentParser) -> None:
     p.add_argument("--sheet", metavar="NAME", help="the worksheet to read (workbooks)")
+
+
+def _add_engine(p: argparse.ArgumentParser) -> None:
+    p.add_argument(
+        "--engine",
+        choices=("memory", "duckdb"),
+        help="read the whole file into memory, or stream it through DuckDB (for files "
+        "larger than memory; CSV, TSV and Parquet); chosen from the file's size and the "
+        "free memory when not given",
+    )
 
 
 class _Parser(argparse.ArgumentParser):
@@ -147,13 +166,17 @@ def build_parser() -> argparse.ArgumentParser:
         make_epilog=lambda: _methods_help() + FIT_EXAMPLES,
         formatter_class=argparse.RawDescriptionHelpFormatter,
     )
-    p.add_argument("data", metavar="DATA", help="the data file to fit on")
+    p.add_argument(
+        "data",
+        metavar="DATA",
+        help="the data file to fit on (with --from-sql-result: the project the query was "
+        "written from)",
+    )
     p.add_argument(
         "-m",
         "--method",
         metavar="COLUMN=METHOD[:OPT=VALUE,...]",
         action="append",
-        required=True,
         help="the method for a column; '*=METHOD' for every numeric column (a -m naming a "
         "column overrides '*'); repeat for more columns",
     )
@@ -184,7 +207,14 @@ def build_parser() -> argparse.ArgumentParser:
         help="fit only on the rows where COLUMN is VALUE (for example split=train); "
         "every row is still scaled",
     )
-    _add_output(p, "SCALED", "also write the scaled data (.xlsx, .csv or .tsv)", False)
+    _add_output(p, "SCALED", "also write the scaled data (.xlsx, .csv, .tsv or .parquet)", False)
+    _add_engine(p)
+    p.add_argument(
+        "--from-sql-result",
+        metavar="FILE",
+        help="make the project from the one-row result (CSV or JSON) of the query that "
+        "'scalewright sql DATA --fit' prints; DATA is then that project",
+    )
 
     p = commands.add_parser(
         "apply",
@@ -197,8 +227,9 @@ def build_parser() -> argparse.ArgumentParser:
     )
     p.add_argument("project", metavar="PROJECT", help="project file or scaled workbook")
     p.add_argument("data", metavar="DATA", help="the data file to scale")
-    _add_output(p, "OUTPUT", "the scaled file to write (.xlsx, .csv or .tsv)", True)
+    _add_output(p, "OUTPUT", "the scaled file to write (.xlsx, .csv, .tsv or .parquet)", True)
     _add_sheet(p)
+    _add_engine(p)
     p.add_argument(
         "--clip",
         action="store_true",
@@ -225,8 +256,9 @@ def build_parser() -> argparse.ArgumentParser:
     )
     p.add_argument("project", metavar="PROJECT_OR_WORKBOOK", help="project file or scaled workbook")
     p.add_argument("data", metavar="DATA", help="the file with scaled values")
-    _add_output(p, "OUTPUT", "the restored file to write (.xlsx, .csv or .tsv)", True)
+    _add_output(p, "OUTPUT", "the restored file to write (.xlsx, .csv, .tsv or .parquet)", True)
     _add_sheet(p)
+    _add_engine(p)
     p.add_argument(
         "--as",
         dest="mapping",
@@ -243,6 +275,48 @@ def build_parser() -> argparse.ArgumentParser:
         default=[],
         help="call restored COLUMN NEW_NAME in the output (by default it keeps its name); "
         "repeat for more columns",
+    )
+
+    p = commands.add_parser(
+        "sql",
+        help="print the SQL that scales a table the way a project does",
+        description="Print one SELECT that applies the project's fitted scaling to a table "
+        "with the source's columns (other columns pass through unchanged), or with "
+        "--restore turns scaled values back into original units. With --fit, print the "
+        "aggregate query that computes the parameters inside the data platform instead.",
+        epilog=SQL_EXAMPLES,
+        formatter_class=argparse.RawDescriptionHelpFormatter,
+    )
+    p.add_argument("project", metavar="PROJECT", help="project file or scaled workbook")
+    p.add_argument(
+        "--dialect",
+        default="duckdb",
+        choices=("duckdb", "postgres", "spark", "snowflake", "bigquery", "tsql"),
+        help="the SQL dialect to write (default duckdb)",
+    )
+    p.add_argument(
+        "--table", metavar="NAME", help="the table to read (default: the data file's name)"
+    )
+    what = p.add_mutually_exclusive_group()
+    what.add_argument(
+        "--restore", action="store_true", help="turn scaled values back into original units"
+    )
+    what.add_argument(
+        "--fit",
+        action="store_true",
+        help="print the aggregate query whose result 'scalewright fit PROJECT "
+        "--from-sql-result FILE' turns into a project",
+    )
+    p.add_argument(
+        "--clip",
+        action="store_true",
+        help="move values outside the fitted range to its nearest end first",
+    )
+    p.add_argument(
+        "--after",
+        metavar="RESULT",
+        help="with --fit: the next round's query, after the result of the previous one "
+        "(Box-Cox and Yeo-Johnson search lambda in rounds)",
     )
 
     p = commands.add_parser(
@@ -510,11 +584,19 @@ def cmd_fit(args: argparse.Namespace) -> int:
 
     project_path = check_project_target(args.project, args.data)
     output = check_target(args.output, source=args.data) if args.output else None
+    if args.from_sql_result is not None:
+        return _fit_from_sql_result(args, project_path, output)
+    if not args.method:
+        raise OptionError("fit needs at least one -m COLUMN=METHOD")
     specs = parse_method_specs(args.method)
     kinds = parse_kinds(args.kinds)
     fit_where = None
     if args.fit_where is not None:
         fit_where = _split_pair(args.fit_where, "--fit-where", "COLUMN=VALUE, e.g. split=train")
+    from .platform.files import choose_engine
+
+    if choose_engine(args.data, args.engine) == "duckdb":
+        return _fit_duckdb(args, project_path, output, specs, FitSettings(fit_where, args.group_by))
 
     with _progress("reading") as progress:
         table = read_table(args.data, ReadOptions(sheet=args.sheet, kinds=kinds), progress=progress)
@@ -545,6 +627,11 @@ def cmd_fit(args: argparse.Namespace) -> int:
             with _progress("writing") as progress:
                 reports = export_scaled(table, project, staged, progress=progress)
             save_project(project, project_path)
+    _print_fitted(project, project_path, output, reports)
+    return 0
+
+
+def _print_fitted(project, project_path: Path, output, reports) -> None:
     plan = project.plan
     assert plan is not None
     where = ""
@@ -560,6 +647,57 @@ def cmd_fit(args: argparse.Namespace) -> int:
         print(f"scaled data written to {output}")
         for line in _report_notes(reports):
             print(line)
+
+
+def _fit_duckdb(args, project_path: Path, output, specs, settings) -> int:
+    """``fit`` through DuckDB: the file is streamed, never loaded whole."""
+    from .io import atomic_path
+    from .platform.files import fit_file
+    from .project import project_to_json, save_project
+
+    reports = []
+    if output is None:
+        project, _ = fit_file(
+            args.data, specs, settings, project_path=project_path, sheet=args.sheet
+        )
+        project_to_json(project, project_path)
+        save_project(project, project_path)
+    else:
+        with atomic_path(output, keep_suffix=True) as staged:
+            project, reports = fit_file(
+                args.data,
+                specs,
+                settings,
+                project_path=project_path,
+                output=staged,
+                sheet=args.sheet,
+            )
+            project_to_json(project, project_path)
+            save_project(project, project_path)
+    _print_fitted(project, project_path, output, reports)
+    return 0
+
+
+def _fit_from_sql_result(args, project_path: Path, output) -> int:
+    """``fit PROJECT --from-sql-result FILE``: the parameters the platform computed."""
+    import dataclasses
+
+    from .platform.results import project_from_result
+    from .project import save_project
+    from .tasks import load_project_or_workbook
+
+    if output is not None:
+        raise OptionError("-o cannot be used with --from-sql-result (the data is not here)")
+    if args.method or args.group_by or args.fit_where:
+        raise OptionError(
+            "with --from-sql-result the methods, groups and fit rows come from the project; "
+            "leave out -m, --group-by and --fit-where"
+        )
+    base = load_project_or_workbook(args.data)
+    project = project_from_result(base, args.from_sql_result)
+    project = dataclasses.replace(project, loaded_from=None)
+    save_project(project, project_path)
+    _print_fitted(project, project_path, None, [])
     return 0
 
 
@@ -585,6 +723,18 @@ def cmd_apply(args: argparse.Namespace) -> int:
     project = load_project_or_workbook(args.project)
     check_not_project_files(output, project)
     mapping = parse_mapping(args.mapping, list(project.plan.columns) if project.plan else [])
+    from .platform.files import apply_file, choose_engine
+
+    if choose_engine(args.data, args.engine) == "duckdb":
+        if args.sheet is not None:
+            raise OptionError("--sheet is for workbooks; the DuckDB engine reads CSV and Parquet")
+        if project.plan is None:
+            raise ScalewrightError(f"{args.project}: the project has no fitted parameters")
+        reports = apply_file(project, args.data, output, clip=args.clip)
+        for line in describe_reports(reports):
+            print(line)
+        print(f"scaled data written to {output}")
+        return 0
     try:
         with _progress("scaling") as progress:
             reports = apply_to_file(
@@ -624,6 +774,23 @@ def cmd_restore(args: argparse.Namespace) -> int:
         raise ScalewrightError(f"{args.project}: the project has no fitted parameters")
     mapping = parse_mapping(args.mapping, list(project.plan.columns))
     names = parse_names(args.names)
+    from .platform.files import choose_engine
+
+    if choose_engine(args.data, args.engine) == "duckdb":
+        from .platform.files import restore_file as restore_streamed
+
+        if args.sheet is not None:
+            raise OptionError("--sheet is for workbooks; the DuckDB engine reads CSV and Parquet")
+        try:
+            reports = restore_streamed(project, args.data, output, mapping)
+        except NothingToRestore as err:
+            raise ScalewrightError(
+                f"{err}; name the pairs with --as COLUMN=SOURCE_COLUMN"
+            ) from None
+        for line in describe_reports(reports, restoring=True):
+            print(line)
+        print(f"restored data written to {output}")
+        return 0
     try:
         with _progress("restoring") as progress:
             reports = restore_file(
@@ -641,6 +808,40 @@ def cmd_restore(args: argparse.Namespace) -> int:
     for line in describe_reports(reports, restoring=True):
         print(line)
     print(f"restored data written to {output}")
+    return 0
+
+
+def cmd_sql(args: argparse.Namespace) -> int:
+    """Print the SELECT (or, with --fit, the aggregate query) for a data platform."""
+    from .tasks import load_project_or_workbook
+
+    project = load_project_or_workbook(args.project)
+    if args.after is not None and not args.fit:
+        raise OptionError("--after goes with --fit")
+    if args.fit:
+        if args.clip:
+            raise OptionError("--clip is for applying; a fit query does not clip")
+        from .platform.results import fit_query_text
+
+        text = fit_query_text(project, dialect=args.dialect, table=args.table, after=args.after)
+    else:
+        from .platform.select import select_sql
+
+        if project.plan is None:
+            raise ScalewrightError(
+                f"{args.project}: the project has no fitted parameters; fit it first, or "
+                "use --fit to compute them in the platform"
+            )
+        if args.restore and args.clip:
+            raise OptionError("--clip is for applying, not for restoring")
+        text = select_sql(
+            project,
+            dialect=args.dialect,
+            restoring=args.restore,
+            clip=args.clip,
+            table=args.table,
+        )
+    print(text.rstrip() + ";")
     return 0
 
 
@@ -748,6 +949,7 @@ _COMMANDS: dict[str, Callable[[argparse.Namespace], int]] = {
     "apply": cmd_apply,
     "restore": cmd_restore,
     "show": cmd_show,
+    "sql": cmd_sql,
     "open": lambda args: _open_window(args.file, args.check_and_quit),
 }
 

@@ -104,6 +104,28 @@ class FitResult(dict):
         self.data_range = data_range
 
 
+@dataclass(frozen=True)
+class ValueSummary:
+    """What a fit needs of a column's values when they are not all at hand (a file larger
+    than memory, a table in a data platform): aggregates computed where the data lives.
+
+    ``n``, ``min`` and ``max`` (finite values only) are always there; the rest only when
+    the method's ``summary_needs`` asks for them.
+    """
+
+    n: int
+    min: float
+    max: float
+    mean: float | None = None  # "moments": two-pass mean ...
+    sq_dev: float | None = None  # ... and sum of squared deviations, in units of dev_scale
+    dev_scale: float = 1.0
+    quartiles: tuple[float, float, float] | None = None  # "quartiles": q1, median, q3 (type 7)
+    lam: float | None = None  # "lambda": the power methods' maximum-likelihood lambda
+    lam_constrained: bool = False
+    t_mean: float | None = None  # "lambda" and standardized: moments of the transformed values
+    t_sq_dev: float | None = None
+
+
 def format_number(value: float, digits: int = 10) -> str:
     """A parameter for people: ``digits`` significant digits (``number_text``: never a
     negative zero), yes/no for switches."""
@@ -256,6 +278,30 @@ class Method:
     ) -> np.ndarray:
         raise NotImplementedError
 
+    #: What ``fit_summary`` needs besides n, min and max: "moments", "quartiles", "lambda".
+    summary_needs: frozenset[str] = frozenset()
+
+    def fit_summary(self, summary: ValueSummary, options: dict[str, Any]) -> FitResult:
+        """``fit`` from aggregates instead of the values, with the very same result.
+
+        By default the fit depends only on the smallest and largest value (min-max,
+        decimal scaling, max-abs, the log shift), so it is ``fit`` on those two.
+        """
+        result = self.fit(np.array([summary.min, summary.max]), options)
+        result.data_range = (summary.min, summary.max)
+        return result
+
+    # SQL (sqlglot expressions; see engine.sql_terms and the platform package). Each takes
+    # the expression of a finite value and returns that of its mapped value; the caller
+    # passes NULL and infinities through and turns a non-finite result into NULL.
+    def sql_forward(self, x, params: Mapping[str, Any]):
+        """The scaled value of the SQL expression ``x``, with ``params`` as exact literals."""
+        raise NotImplementedError
+
+    def sql_inverse(self, y, params: Mapping[str, Any]):
+        """The original value of the SQL expression ``y`` (a scaled value)."""
+        raise NotImplementedError
+
     def forward_all(
         self, x: np.ndarray, params: Mapping[str, Any], out: np.ndarray | None = None
     ) -> np.ndarray:
@@ -325,6 +371,34 @@ class LinearMethod(Method):
             out *= s.divide  # a divisor of 0 (a constant column) turns every value back to it
         if s.subtract != 0.0:
             out += s.subtract
+        return out
+
+    def sql_forward(self, x, params):
+        from . import sql_terms as S
+
+        s = self.steps(params)
+        if s.divide == 0:
+            return S.num(s.add)
+        out = S.sub(x, S.num(s.subtract)) if s.subtract != 0.0 else x
+        if s.divide != 1.0:
+            out = S.div(out, S.num(s.divide))
+        if s.multiply != 1.0:
+            out = S.mul(out, S.num(s.multiply))
+        if s.add != 0.0:
+            out = S.add(out, S.num(s.add))
+        return out
+
+    def sql_inverse(self, y, params):
+        from . import sql_terms as S
+
+        s = self.steps(params)
+        out = S.sub(y, S.num(s.add)) if s.add != 0.0 else y
+        if s.multiply != 1.0:
+            out = S.div(out, S.num(s.multiply))
+        if s.divide != 1.0:
+            out = S.mul(out, S.num(s.divide))
+        if s.subtract != 0.0:
+            out = S.add(out, S.num(s.subtract))
         return out
 
 

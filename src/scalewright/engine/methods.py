@@ -124,6 +124,20 @@ class MinMax(LinearMethod):
         out *= 2.0
         return out
 
+    def sql_forward(self, x, params):
+        if math.isfinite(params["max"] - params["min"]):
+            return super().sql_forward(x, params)
+        from . import sql_terms as S
+
+        return super().sql_forward(S.mul(x, S.num(0.5)), _halved(params))
+
+    def sql_inverse(self, y, params):
+        if math.isfinite(params["max"] - params["min"]):
+            return super().sql_inverse(y, params)
+        from . import sql_terms as S
+
+        return S.mul(super().sql_inverse(y, _halved(params)), S.num(2.0))
+
     def check_saved(self, params, options, lo, hi):
         for key, value in (("low", options["low"]), ("high", options["high"])):
             if params[key] != value:
@@ -164,6 +178,8 @@ class ZScore(LinearMethod):
     )
     inverse_formula = "x = y * sd + mean"
 
+    summary_needs = frozenset({"moments"})
+
     def fit(self, x, options):
         ddof = 1 if options["sd"] == "sample" else 0
         lo, hi = float(np.min(x)), float(np.max(x))
@@ -173,11 +189,25 @@ class ZScore(LinearMethod):
             m, s = float(x[0]), 0.0
         else:
             m, s = numerics.mean_sd(x, ddof=ddof)
+        return self._result(m, s, ddof, x.size, lo, hi)
+
+    def fit_summary(self, summary, options):
+        ddof = 1 if options["sd"] == "sample" else 0
+        lo, hi, n = summary.min, summary.max, summary.n
+        if lo == hi:
+            m, s = lo, 0.0
+        else:
+            m = summary.mean
+            spread = math.sqrt(max(summary.sq_dev, 0.0) / (n - ddof)) if n - ddof > 0 else math.nan
+            s = summary.dev_scale * spread
+        return self._result(m, s, ddof, n, lo, hi)
+
+    def _result(self, m, s, ddof, n, lo, hi):
         if math.isinf(s):
             raise FitError("the values are too far apart to measure their spread in floating point")
         warnings = []
         if not s > 0:
-            if x.size - ddof <= 0:
+            if n - ddof <= 0:
                 warnings.append("too few values to measure a spread, so every value becomes 0")
             else:
                 warnings.append("all values are the same, so every value becomes 0")
@@ -284,9 +314,16 @@ class Robust(LinearMethod):
     inverse_formula = "x = y * scale + median   (scale = q3 - q1)"
     slow_fit = True  # quartiles sort the values
 
+    summary_needs = frozenset({"quartiles"})
+
     def fit(self, x, options):
         q1, median, q3 = numerics.quantiles(x, (0.25, 0.5, 0.75))
-        lo, hi = finite_range(x)
+        return self._result(q1, median, q3, *finite_range(x))
+
+    def fit_summary(self, summary, options):
+        return self._result(*summary.quartiles, summary.min, summary.max)
+
+    def _result(self, q1, median, q3, lo, hi):
         scale = robust_scale(q1, median, q3, lo, hi)
         warnings = []
         if not q3 - q1 > 0:
@@ -432,6 +469,24 @@ class Logarithm(Method):
         with np.errstate(over="ignore"):
             return exp(y) - params["shift"]
 
+    def sql_forward(self, x, params):
+        from . import sql_terms as S
+
+        shifted = S.add(x, S.num(params["shift"])) if params["shift"] else x
+        out = S.ln(shifted)
+        if params["base"] != "e":
+            out = S.div(out, S.num(math.log(float(params["base"]))))
+        return S.case((S.gt(shifted.copy(), S.num(0.0)), out))  # no log of 0 or below
+
+    def sql_inverse(self, y, params):
+        from . import sql_terms as S
+
+        if params["base"] == "e":
+            out = S.exp_(y)
+        else:
+            out = S.exp_(S.mul(y, S.num(math.log(float(params["base"])))))
+        return S.sub(out, S.num(params["shift"])) if params["shift"] else out
+
     def check_saved(self, params, options, lo, hi):
         if params["base"] != options["base"]:
             raise ParamError("base", f"does not match the option base ({options['base']})")
@@ -492,13 +547,25 @@ class _PowerMethod(Method):
     )
     slow_fit = True  # a search for lambda
 
+    summary_needs = frozenset({"lambda"})
+
     def _standardize(
-        self, transformed: np.ndarray, options: dict, params: dict, warnings: list
+        self,
+        transformed: np.ndarray | None,
+        options: dict,
+        params: dict,
+        warnings: list,
+        moments: tuple[float, float] | None = None,
     ) -> None:
+        """Add mean and sd of the transformed values (or ``moments``, their mean and sd
+        computed elsewhere) when standardizing."""
         params["standardize"] = bool(options["standardize"])
         if options["standardize"]:
-            m = numerics.mean(transformed)
-            s = numerics.sd(transformed, ddof=1, center=m)
+            if moments is not None:
+                m, s = moments
+            else:
+                m = numerics.mean(transformed)
+                s = numerics.sd(transformed, ddof=1, center=m)
             if not s > 0:
                 warnings.append("the transformed values have no spread; dividing by 1 instead")
                 s = 1.0
@@ -530,6 +597,54 @@ class _PowerMethod(Method):
             )
             warnings.append(f"lambda {params['lambda']:.4g} is extreme for these values: {lost}")
 
+    def fit_summary(self, summary, options):
+        x = np.array([summary.min, summary.max])
+        self._check_values(x)
+        params: dict[str, Any] = {"lambda": summary.lam}
+        warnings = self._lambda_warnings(summary.lam, summary.lam_constrained)
+        moments = None
+        if options["standardize"]:
+            n = summary.n
+            sd = math.sqrt(max(summary.t_sq_dev, 0.0) / (n - 1)) if n > 1 else math.nan
+            moments = (summary.t_mean, sd)
+        self._standardize(None, options, params, warnings, moments)
+        self._check_reversible(x, params, warnings)  # checked on the extremes
+        return FitResult(params, warnings)
+
+    # The lambda search where the values are not at hand (see platform.power_search): the
+    # profile log-likelihood is ``coef(lambda) * sum(linear) - n/2 * log(var(value))``, with
+    # ``base`` the per-row quantity the search works on (centred by its mean when
+    # ``search_centred``), and ``value`` the transform at a candidate lambda (an SQL
+    # expression, one per candidate), so that one pass evaluates many candidates.
+    search_centred = False
+
+    def sql_search_base(self, x):
+        return x
+
+    def sql_search_linear(self, base):
+        raise NotImplementedError
+
+    def sql_search_value(self, base, lam):
+        raise NotImplementedError
+
+    def llf_coef(self, lam: float) -> float:
+        raise NotImplementedError
+
+    def lambda_bounds(self, lo: float, hi: float) -> tuple[float, float] | None:
+        """The bounds the in-memory fit keeps lambda in (None: Brent from (-2, 2), free)."""
+        return None
+
+    def finish_lambda(self, lam: float, lo: float, hi: float) -> tuple[float, bool]:
+        """The lambda the in-memory fit would end with, and whether it was constrained."""
+        return lam, False
+
+    def _check_values(self, x: np.ndarray) -> None:
+        if np.min(x) == np.max(x):
+            raise FitError(f"all values are the same, so {self.name} cannot be fitted")
+
+    def _lambda_warnings(self, lam: float, constrained: bool) -> list[str]:
+        return []
+
     def _scale(self, t: np.ndarray, params) -> np.ndarray:
         if params.get("standardize"):
             return (t - params["mean"]) / params["sd"]
@@ -538,6 +653,20 @@ class _PowerMethod(Method):
     def _unscale(self, y: np.ndarray, params) -> np.ndarray:
         if params.get("standardize"):
             return y * params["sd"] + params["mean"]
+        return y
+
+    def _sql_scale(self, t, params):
+        from . import sql_terms as S
+
+        if params.get("standardize"):
+            return S.div(S.sub(t, S.num(params["mean"])), S.num(params["sd"]))
+        return t
+
+    def _sql_unscale(self, y, params):
+        from . import sql_terms as S
+
+        if params.get("standardize"):
+            return S.add(S.mul(y, S.num(params["sd"])), S.num(params["mean"]))
         return y
 
     def check_saved(self, params, options, lo, hi):
@@ -560,22 +689,53 @@ class BoxCox(_PowerMethod):
     when_to_use = "For strictly positive, skewed columns (for other signs use Yeo-Johnson)."
     inverse_formula = "x = (lambda * y' + 1)^(1/lambda), or exp(y') if lambda = 0; y' = y * sd + mean if standardized"
 
-    def fit(self, x, options):
+    def _check_values(self, x):
         if np.any(x <= 0):
             raise FitError(
                 "Box-Cox needs values above 0, and this column has values of 0 or below; "
                 "choose Yeo-Johnson, which accepts any sign"
             )
-        if np.min(x) == np.max(x):
-            raise FitError("all values are the same, so Box-Cox cannot be fitted")
+        super()._check_values(x)
+
+    search_centred = True  # the centred logarithms, as BoxCoxLikelihood works on
+
+    def sql_search_base(self, x):
+        from . import sql_terms as S
+
+        return S.case((S.gt(x, S.num(0.0)), S.ln(x.copy())))
+
+    def sql_search_linear(self, base):
+        return base
+
+    def sql_search_value(self, base, lam):
+        from . import sql_terms as S
+
+        # lambda * sum(L - c) - n/2 * log(var(expm1(lambda * (L - c)) / lambda)), as in
+        # power.BoxCoxLikelihood (the constant -sum(L) left out).
+        return S.case(
+            (S.eq(lam, S.num(0.0)), base),
+            default=S.div(S.expm1(S.mul(lam.copy(), base.copy())), lam.copy()),
+        )
+
+    def llf_coef(self, lam):
+        return lam
+
+    def finish_lambda(self, lam, lo, hi):
+        return power.constrain_boxcox_lambda(lam, lo, hi)
+
+    def _lambda_warnings(self, lam, constrained):
+        if not constrained:
+            return []
+        return [
+            f"the best lambda would push values beyond what floating point can hold; "
+            f"lambda {lam!r} was used instead (as scipy does)"
+        ]
+
+    def fit(self, x, options):
+        self._check_values(x)
         lam, constrained = power.boxcox_lambda(x, report_constrained=True)
         params: dict[str, Any] = {"lambda": lam}
-        warnings: list[str] = []
-        if constrained:
-            warnings.append(
-                f"the best lambda would push values beyond what floating point can hold; "
-                f"lambda {lam!r} was used instead (as scipy does)"
-            )
+        warnings = self._lambda_warnings(lam, constrained)
         self._standardize(power.boxcox_forward(x, lam), options, params, warnings)
         self._check_reversible(x, params, warnings)
         return FitResult(params, warnings)
@@ -585,6 +745,24 @@ class BoxCox(_PowerMethod):
 
     def inverse(self, y, params, out=None):  # out: see Method.forward (not used here)
         return power.boxcox_inverse(self._unscale(y, params), params["lambda"])
+
+    def sql_forward(self, x, params):
+        from . import sql_terms as S
+
+        lam = params["lambda"]
+        t = S.ln(x) if lam == 0 else S.div(S.expm1(S.mul(S.num(lam), S.ln(x))), S.num(lam))
+        return S.case((S.gt(x.copy(), S.num(0.0)), self._sql_scale(t, params)))
+
+    def sql_inverse(self, y, params):
+        from . import sql_terms as S
+
+        lam = params["lambda"]
+        y = self._sql_unscale(y, params)
+        if lam == 0:
+            return S.exp_(y)
+        arg = S.mul(S.num(lam), y)  # no original value where lambda * y <= -1
+        out = S.exp_(S.div(S.log1p(arg), S.num(lam)))
+        return S.case((S.gt(arg.copy(), S.num(-1.0)), out))
 
     def check_saved(self, params, options, lo, hi):
         super().check_saved(params, options, lo, hi)
@@ -606,9 +784,41 @@ class YeoJohnson(_PowerMethod):
         "y' = y * sd + mean if standardized"
     )
 
+    def sql_search_base(self, x):
+        """The signed logarithm: log1p(x) for x >= 0, -log1p(-x) below (as the in-memory
+        YeoJohnsonLikelihood keeps them), so the candidates' transforms name one column."""
+        from . import sql_terms as S
+
+        return S.case(
+            (S.ge(x, S.num(0.0)), S.log1p(x.copy())),
+            default=S.neg(S.log1p(S.neg(x.copy()))),
+        )
+
+    def sql_search_linear(self, base):
+        return base
+
+    def sql_search_value(self, base, lam):
+        from . import sql_terms as S
+
+        pos = S.case(
+            (S.eq(lam, S.num(0.0)), base),
+            default=S.div(S.expm1(S.mul(lam.copy(), base.copy())), lam.copy()),
+        )
+        two_less = S.sub(S.num(2.0), lam.copy())
+        neg = S.case(
+            (S.eq(lam.copy(), S.num(2.0)), base.copy()),
+            default=S.neg(S.div(S.expm1(S.mul(two_less, S.neg(base.copy()))), two_less.copy())),
+        )
+        return S.case((S.ge(base.copy(), S.num(0.0)), pos), default=neg)
+
+    def llf_coef(self, lam):
+        return lam - 1.0
+
+    def lambda_bounds(self, lo, hi):
+        return power.yeojohnson_bounds(lo, hi)
+
     def fit(self, x, options):
-        if np.min(x) == np.max(x):
-            raise FitError("all values are the same, so Yeo-Johnson cannot be fitted")
+        self._check_values(x)
         lam = power.yeojohnson_lambda(x)
         params: dict[str, Any] = {"lambda": lam}
         warnings: list[str] = []
@@ -621,6 +831,39 @@ class YeoJohnson(_PowerMethod):
 
     def inverse(self, y, params, out=None):  # out: see Method.forward (not used here)
         return power.yeojohnson_inverse(self._unscale(y, params), params["lambda"])
+
+    def sql_forward(self, x, params):
+        from . import sql_terms as S
+
+        lam = params["lambda"]
+        pos = S.log1p(x)
+        if lam != 0:
+            pos = S.div(S.expm1(S.mul(S.num(lam), pos)), S.num(lam))
+        neg = S.log1p(S.neg(x.copy()))
+        if lam == 2:
+            neg = S.neg(neg)
+        else:
+            neg = S.neg(S.div(S.expm1(S.mul(S.num(2.0 - lam), neg)), S.num(2.0 - lam)))
+        t = S.case((S.ge(x.copy(), S.num(0.0)), pos), default=neg)
+        return self._sql_scale(t, params)
+
+    def sql_inverse(self, y, params):
+        from . import sql_terms as S
+
+        lam = params["lambda"]
+        y = self._sql_unscale(y, params)
+        if lam == 0:
+            pos = S.expm1(y)
+        else:
+            arg = S.mul(S.num(lam), y)
+            pos = S.case((S.gt(arg, S.num(-1.0)), S.expm1(S.div(S.log1p(arg.copy()), S.num(lam)))))
+        if lam == 2:
+            neg = S.neg(S.expm1(S.neg(y.copy())))
+        else:
+            arg = S.mul(S.num(-(2.0 - lam)), y.copy())
+            back = S.neg(S.expm1(S.div(S.log1p(arg.copy()), S.num(2.0 - lam))))
+            neg = S.case((S.gt(arg, S.num(-1.0)), back))
+        return S.case((S.ge(y.copy(), S.num(0.0)), pos), default=neg)
 
 
 METHODS: dict[str, Method] = {

@@ -92,8 +92,14 @@ def boxcox_lambda(x: np.ndarray, report_constrained: bool = False):
     # scipy.stats.boxcox_normmax(method="mle") uses optimize.brent with brack=(-2, 2).
     with np.errstate(all="ignore"):  # brent's arithmetic on infinite llf values warns
         lam = float(optimize.brent(like.neg_llf, brack=(-2.0, 2.0), tol=_BRENT_TOL))
+    lam, constrained = constrain_boxcox_lambda(lam, float(np.min(x)), float(np.max(x)))
+    return (lam, constrained) if report_constrained else lam
+
+
+def constrain_boxcox_lambda(lam: float, xmin: float, xmax: float) -> tuple[float, bool]:
+    """``lam`` moved, as scipy does, when it would send the most extreme of the values
+    (between ``xmin`` and ``xmax``) beyond ``BOXCOX_YMAX``; and whether it was moved."""
     constrained = False
-    xmax, xmin = float(np.max(x)), float(np.min(x))
     if xmin >= 1:
         extreme = xmax
     elif xmax <= 1:
@@ -106,7 +112,7 @@ def boxcox_lambda(x: np.ndarray, report_constrained: bool = False):
         w = special.lambertw(-(extreme ** (-1 / y)) * np.log(extreme) / y, k=-1)
         lam = float(np.real(-w / np.log(extreme) - 1 / y))
         constrained = True
-    return (lam, constrained) if report_constrained else lam
+    return lam, constrained
 
 
 def _boxcox_scalar(x: float, lam: float) -> float:
@@ -185,6 +191,17 @@ def yeojohnson_lambda(x: np.ndarray) -> float:
     like = YeoJohnsonLikelihood(x)
     with np.errstate(all="ignore"):
         return float(optimize.fminbound(like.neg_llf, lb, ub, xtol=_BRENT_TOL))
+
+
+def yeojohnson_bounds(lo: float, hi: float) -> tuple[float, float] | None:
+    """The bounds ``yeojohnson_lambda`` searches in for finite values from ``lo`` to ``hi``
+    (they depend on nothing else); None where it returns 1 without a search."""
+    if lo == 0.0 and hi == 0.0:
+        return None
+    lb, ub = _yeojohnson_bounds(np.array([lo, hi]))
+    if not (np.isfinite(lb) and np.isfinite(ub)):
+        return None
+    return lb, ub
 
 
 def _yeojohnson_bounds(x: np.ndarray) -> tuple[float, float]:

@@ -13,8 +13,8 @@ from pathlib import Path
 
 import pandas as pd
 
-SUPPORTED_READ = (".csv", ".tsv", ".txt", ".xlsx", ".xlsm", ".xls", ".ods")
-SUPPORTED_WRITE = (".csv", ".tsv", ".xlsx")
+SUPPORTED_READ = (".csv", ".tsv", ".txt", ".xlsx", ".xlsm", ".xls", ".ods", ".parquet")
+SUPPORTED_WRITE = (".csv", ".tsv", ".xlsx", ".parquet")
 TEXT_SUFFIXES = (".csv", ".tsv", ".txt")
 WORKBOOK_SUFFIXES = (".xlsx", ".xlsm", ".xls", ".ods")
 

@@ -17,6 +17,7 @@ from .options import (
     ReadOptions,
     Table,
 )
+from .parquet import read_parquet_table
 from .workbook_reader import list_workbook_sheets, read_workbook_table
 
 
@@ -61,6 +62,8 @@ def read_table(
     size, sha256 = fingerprint(path)
     if path.suffix.lower() in TEXT_SUFFIXES:
         table = read_text_table(path, options, progress=progress, cancelled=cancelled)
+    elif path.suffix.lower() == ".parquet":
+        table = read_parquet_table(path, options)
     else:
         table = read_workbook_table(path, options, progress=progress, cancelled=cancelled)
     if _stamp(path) != before or size != before[0]:
@@ -78,6 +81,8 @@ def detect(path, options: ReadOptions | None = None, *, preview_rows: int = 50) 
     _check_content(path, options)
     if path.suffix.lower() in TEXT_SUFFIXES:
         table = read_text_table(path, options, preview_rows=preview_rows)
+    elif path.suffix.lower() == ".parquet":
+        table = read_parquet_table(path, options, preview_rows=preview_rows)
     else:
         table = read_workbook_table(path, options, preview_rows=preview_rows)
     return Detection(
@@ -88,7 +93,7 @@ def detect(path, options: ReadOptions | None = None, *, preview_rows: int = 50) 
 def list_sheets(path) -> list[str]:
     """Visible worksheet names of a workbook; [] for delimited text files."""
     path = _checked(path)
-    if path.suffix.lower() in TEXT_SUFFIXES:
+    if path.suffix.lower() in TEXT_SUFFIXES or path.suffix.lower() == ".parquet":
         return []
     return list_workbook_sheets(path)
 

@@ -1,4 +1,4 @@
-"""Write tables to CSV, TSV and XLSX, and the scaled workbook with its embedded project.
+"""Write tables to CSV, TSV, XLSX and Parquet, and the scaled workbook with its embedded project.
 
 Every writer puts ``headers`` (the file's own header text) in the first row, writes to a
 temporary file beside the target and renames it into place (see ``atomic``).
@@ -31,6 +31,7 @@ from xlsxwriter.worksheet import Worksheet
 from ..errors import Cancelled, ReadError, WriteError
 from .atomic import atomic_path, signals_held
 from .options import SUPPORTED_WRITE, WORKBOOK_SUFFIXES, CancelCheck, Progress
+from .parquet import write_parquet
 
 CHUNK_ROWS = 20_000
 PROGRESS_ROWS = 5_000
@@ -96,6 +97,11 @@ def write_table(
         _write_delimited(
             path, data, headers, "," if suffix == ".csv" else "\t", progress, cancelled
         )
+        return
+    if suffix == ".parquet":
+        write_parquet(path, data, headers, _arrow_ready)
+        if progress is not None:
+            progress(1.0)
         return
     with atomic_path(path) as tmp, _workbook(tmp, path) as book:
         _write_sheet(book, DATA_SHEET, data, headers, progress, cancelled, 0.0, 1.0, path)
