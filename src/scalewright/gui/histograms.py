@@ -14,7 +14,15 @@ import math
 import numpy as np
 import pyqtgraph as pg
 from PySide6.QtCore import QPointF, Qt, QTimer
-from PySide6.QtWidgets import QGridLayout, QHBoxLayout, QLabel, QPushButton, QVBoxLayout, QWidget
+from PySide6.QtWidgets import (
+    QGraphicsItem,
+    QGridLayout,
+    QHBoxLayout,
+    QLabel,
+    QPushButton,
+    QVBoxLayout,
+    QWidget,
+)
 
 from ..engine import get_method
 from ..engine.number_text import number_text
@@ -81,6 +89,11 @@ class _Side:
         self.plot.showGrid(x=False, y=True, alpha=0.15)
         self.plot.setLabel("left", "count")
         self._left_title = "count"
+        # Axes are drawn from a pixmap while their range and labels stay the same: a
+        # method switch leaves three of the four axes as they were, and replaying their
+        # recorded drawing took longer than the rest of the plot.
+        for name in ("left", "bottom"):
+            self.plot.getAxis(name).setCacheMode(QGraphicsItem.CacheMode.DeviceCoordinateCache)
         self.title = title
         self.colour = colour
         self.bars = pg.BarGraphItem(

@@ -224,6 +224,13 @@ class MainWindow(QMainWindow):
             "Turn scaled values (for example a model's predictions) back into original units",
             sp.SP_BrowserReload,
         )
+        self.act_copy_sql = self._action(
+            "Copy as SQL…",
+            self.open_sql_dialog,
+            "Ctrl+Shift+C",
+            "The query that scales (or turns back) a table with these fitted values in a "
+            "data platform, to copy",
+        )
         self.act_quit = self._action("Quit", self.close, QKeySequence.StandardKey.Quit)
         self.act_undo = self.stack.createUndoAction(self, "Undo")
         self.act_undo.setShortcut(QKeySequence.StandardKey.Undo)
@@ -304,7 +311,7 @@ class MainWindow(QMainWindow):
         m.addSeparator()
         m.addActions([self.act_save, self.act_save_as])
         m.addSeparator()
-        m.addActions([self.act_export, self.act_apply, self.act_restore])
+        m.addActions([self.act_export, self.act_apply, self.act_restore, self.act_copy_sql])
         m.addSeparator()
         m.addAction(self.act_quit)
         m = mb.addMenu("&Edit")
@@ -382,7 +389,7 @@ class MainWindow(QMainWindow):
         has = self.session.table is not None
         idle = not self.jobs.busy
         fitted = not self.session.fits_pending
-        for a in (self.act_save, self.act_save_as, self.act_export):
+        for a in (self.act_save, self.act_save_as, self.act_export, self.act_copy_sql):
             a.setEnabled(has and idle and fitted)
         for a in (self.act_suggest, self.act_leave, self.act_select_all):
             a.setEnabled(has and idle)
@@ -708,6 +715,16 @@ class MainWindow(QMainWindow):
         job.ended.connect(loop.quit)
         if not job.done:
             loop.exec()
+
+    def open_sql_dialog(self):
+        """Copy as SQL (the same SELECT as ``scalewright sql``); None when not ready."""
+        if self.session.table is None or not self._ready_to_write("Nothing to copy: "):
+            return None
+        from .sql_dialog import SqlDialog
+
+        dialog = SqlDialog(projects.project_builder(self.session), self)
+        dialog.show()
+        return dialog
 
     def choose_and_export(self) -> None:
         if self.session.table is None:

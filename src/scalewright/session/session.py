@@ -49,6 +49,8 @@ class Session(ColumnReads):
     def __init__(self, bins: int = BINS) -> None:
         self.bins = bins
         self.table: Any | None = None  # scalewright.io.Table
+        self._labels_of: Any = None  # the columns index _label_positions was made from
+        self._label_positions: dict[str, int] = {}
         self._choices: dict[str, ColumnChoice] = {}
         self._selection: list[str] = []
         self._project_path: Path | None = None
@@ -69,7 +71,18 @@ class Session(ColumnReads):
 
     @property
     def labels(self) -> list[str]:
-        return [str(c) for c in self.data.columns]
+        return list(self._label_index())
+
+    def _label_index(self) -> dict[str, int]:
+        """label -> position, made once per columns index (the column list asks for every
+        row's header on each repaint; listing an Arrow-backed index each time was slow)."""
+        columns = self.data.columns
+        if self._labels_of is not columns:
+            self._labels_of = columns
+            self._label_positions = {}
+            for i, c in enumerate(columns):
+                self._label_positions.setdefault(str(c), i)
+        return self._label_positions
 
     @property
     def n_rows(self) -> int:
@@ -80,8 +93,8 @@ class Session(ColumnReads):
         if self.table is None:
             return label
         try:
-            return str(self.table.headers[self.labels.index(label)])
-        except (ValueError, IndexError):
+            return str(self.table.headers[self._label_index()[label]])
+        except (KeyError, IndexError):
             return label
 
     def kind(self, label: str) -> str:
