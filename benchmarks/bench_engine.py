@@ -74,7 +74,19 @@ def floor_pass(a: np.ndarray) -> Callable[[], np.ndarray]:
     return lambda: (a - c) / s
 
 
-METHOD_IDS = ["minmax", "zscore", "decimal", "robust", "maxabs", "log", "boxcox", "yeojohnson"]
+METHOD_IDS = [
+    "minmax",
+    "zscore",
+    "decimal",
+    "robust",
+    "maxabs",
+    "log",
+    "boxcox",
+    "yeojohnson",
+    "quantile",
+]
+# The references transform without standardizing; so do we here (our default standardizes).
+OPTIONS = {"boxcox": {"standardize": "no"}, "yeojohnson": {"standardize": "no"}}
 POSITIVE_ONLY = {"log", "boxcox", "yeojohnson"}
 
 
@@ -125,6 +137,16 @@ def reference_calls(method: str, a: np.ndarray):
             lambda: preprocessing.PowerTransformer(standardize=False).fit_transform(a),
             lambda: transformer.inverse_transform(scaled),
         )
+    if method == "quantile":
+        qt = preprocessing.QuantileTransformer(n_quantiles=1000, subsample=None)
+        scaled = qt.fit_transform(a)
+        return (
+            "sklearn QuantileTransformer(1000)",
+            lambda: preprocessing.QuantileTransformer(
+                n_quantiles=1000, subsample=None
+            ).fit_transform(a),
+            lambda: qt.inverse_transform(scaled),
+        )
     if method == "log":
         logs = np.log(a)
         return ("numpy log / exp", lambda: np.log(a), lambda: np.exp(logs))
@@ -134,7 +156,7 @@ def reference_calls(method: str, a: np.ndarray):
 def measure(method: str, data: pd.DataFrame, repeat: int) -> dict:
     a = data.to_numpy()
     floor = best_of(repeat, floor_pass(a))
-    choices = {c: ColumnChoice(method) for c in data.columns}
+    choices = {c: ColumnChoice(method, OPTIONS.get(method, {})) for c in data.columns}
     plan = fit(data, choices)
     scaled = apply(data, plan)[0]
     row = {
@@ -149,7 +171,7 @@ def measure(method: str, data: pd.DataFrame, repeat: int) -> dict:
     }
     ref = reference_calls(method, a)
     if ref is not None:
-        slow = method in ("boxcox", "yeojohnson")
+        slow = method in ("boxcox", "yeojohnson", "quantile")
         row["ref"] = ref[0]
         row["ref_fit_apply"] = best_of(min(repeat, 2) if slow else repeat, ref[1])
         row["ref_restore"] = best_of(repeat, ref[2])

@@ -66,6 +66,11 @@ examples:
   scalewright restore harvest.swproj predicted_yield_scaled.csv --as predicted_yield=yield_kg \\
       --name predicted_yield=predicted_yield_kg -o predicted_yield_kg.csv"""
 
+REPORT_EXAMPLES = """\
+examples:
+  scalewright report harvest.swproj -o harvest_report.html
+  scalewright report harvest_2025_scaled.xlsx -o harvest_report.pdf"""
+
 SQL_EXAMPLES = """\
 dialects: duckdb, postgres, spark, snowflake, bigquery, tsql
 
@@ -328,6 +333,19 @@ def build_parser() -> argparse.ArgumentParser:
         formatter_class=argparse.RawDescriptionHelpFormatter,
     )
     p.add_argument("project", metavar="PROJECT", help="project file or scaled workbook")
+
+    p = commands.add_parser(
+        "report",
+        help="write a report of a project for colleagues and auditors (.html or .pdf)",
+        description="Write one file that records the project: the data file and its "
+        "fingerprint, the dates, and per column the method, parameters, the formula to "
+        "reverse it, the fit summary, warnings and histograms before and after. The "
+        "histograms need the data file; without it the report says why they are missing.",
+        epilog=REPORT_EXAMPLES,
+        formatter_class=argparse.RawDescriptionHelpFormatter,
+    )
+    p.add_argument("project", metavar="PROJECT_OR_WORKBOOK", help="project file or scaled workbook")
+    _add_output(p, "FILE", "the report to write (.html or .pdf)", True)
     return parser
 
 
@@ -730,7 +748,7 @@ def cmd_apply(args: argparse.Namespace) -> int:
             raise OptionError("--sheet is for workbooks; the DuckDB engine reads CSV and Parquet")
         if project.plan is None:
             raise ScalewrightError(f"{args.project}: the project has no fitted parameters")
-        reports = apply_file(project, args.data, output, clip=args.clip)
+        reports = apply_file(project, args.data, output, clip=args.clip, mapping=mapping)
         for line in describe_reports(reports):
             print(line)
         print(f"scaled data written to {output}")
@@ -782,7 +800,7 @@ def cmd_restore(args: argparse.Namespace) -> int:
         if args.sheet is not None:
             raise OptionError("--sheet is for workbooks; the DuckDB engine reads CSV and Parquet")
         try:
-            reports = restore_streamed(project, args.data, output, mapping)
+            reports = restore_streamed(project, args.data, output, mapping, names)
         except NothingToRestore as err:
             raise ScalewrightError(
                 f"{err}; name the pairs with --as COLUMN=SOURCE_COLUMN"
@@ -853,6 +871,20 @@ def cmd_show(args: argparse.Namespace) -> int:
     path = Path(args.project)
     for line in show_lines(project, path if is_project_file(path) else None):
         print(line)
+    return 0
+
+
+def cmd_report(args: argparse.Namespace) -> int:
+    from .report import check_report_target, write_report
+    from .tasks import load_project_or_workbook
+
+    output = check_report_target(args.output)
+    project = load_project_or_workbook(args.project)
+    with _progress("reading the data") as progress:
+        report = write_report(project, output, progress=progress)
+    print(f"report written to {output}")
+    if report.figures_missing:
+        print(f"  note: {report.figures_missing}")
     return 0
 
 
@@ -950,6 +982,7 @@ _COMMANDS: dict[str, Callable[[argparse.Namespace], int]] = {
     "restore": cmd_restore,
     "show": cmd_show,
     "sql": cmd_sql,
+    "report": cmd_report,
     "open": lambda args: _open_window(args.file, args.check_and_quit),
 }
 

@@ -194,10 +194,12 @@ def check_target(
     *,
     source: str | os.PathLike | None = None,
     project: Project | None = None,
+    formats: Sequence[str] = SUPPORTED_WRITE,
 ) -> Path:
     """The path an output may be written to, or :class:`WriteError` saying why not.
 
-    Refused: a project file name, a format that cannot be written, a folder, ``source``
+    Refused: a project file name, a format not in ``formats`` (the data formats unless
+    told otherwise, for example the report's), a folder, ``source``
     (the file the data is read from), and, for ``project``, the file it was loaded from
     (a project file or a scaled workbook) and the data file it was fitted on. Nothing is
     written; every job that writes an output checks here first, and so may a dialog.
@@ -207,15 +209,12 @@ def check_target(
     if suffix == SUFFIX:
         raise WriteError(
             target,
-            "this name is for project files; choose a data file name ("
-            + ", ".join(SUPPORTED_WRITE)
-            + ")",
+            "this name is for project files; choose a data file name (" + ", ".join(formats) + ")",
         )
-    if suffix not in SUPPORTED_WRITE:
+    if suffix not in formats:
         raise WriteError(
             target,
-            f"cannot write '{suffix or 'no extension'}' files; use one of "
-            + ", ".join(SUPPORTED_WRITE),
+            f"cannot write '{suffix or 'no extension'}' files; use one of " + ", ".join(formats),
         )
     ensure_not_source(target, source)
     if project is not None:
@@ -337,6 +336,24 @@ def _read(
     return read_table(path, options, progress=progress, cancelled=cancelled)
 
 
+def _new_file(
+    project: Project,
+    data_path: str | os.PathLike,
+    target: str | os.PathLike,
+    options: ReadOptions | None,
+    sheet: str | None,
+    progress: Progress | None,
+    cancelled: CancelCheck | None,
+    checked: bool,
+) -> tuple[Path, Table]:
+    """The checked target and the new file read as the project reads it (the first half
+    of the progress), for applying or restoring."""
+    _fitted(project)
+    target = Path(target) if checked else check_target(target, source=data_path, project=project)
+    reading = reading_for(project, options)
+    return target, _read(data_path, reading, sheet, _part(progress, 0.0, 0.5), cancelled)
+
+
 def apply_to_file(
     project: Project,
     data_path: str | os.PathLike,
@@ -358,10 +375,9 @@ def apply_to_file(
     passed ``target`` through :func:`check_target` with this data file and project (the
     output is checked once, before anything is read).
     """
-    _fitted(project)
-    target = Path(target) if checked else check_target(target, source=data_path, project=project)
-    reading = reading_for(project, options)
-    table = _read(data_path, reading, sheet, _part(progress, 0.0, 0.5), cancelled)
+    target, table = _new_file(
+        project, data_path, target, options, sheet, progress, cancelled, checked
+    )
     return _apply_checked(
         project,
         table,
@@ -482,10 +498,9 @@ def restore_file(
     """Read ``data_path`` and turn its scaled values back into original units (see
     :func:`restore_table`). ``options``, ``sheet`` and ``checked`` as for
     :func:`apply_to_file`."""
-    _fitted(project)
-    target = Path(target) if checked else check_target(target, source=data_path, project=project)
-    reading = reading_for(project, options)
-    table = _read(data_path, reading, sheet, _part(progress, 0.0, 0.5), cancelled)
+    target, table = _new_file(
+        project, data_path, target, options, sheet, progress, cancelled, checked
+    )
     return _restore_checked(
         project,
         table,

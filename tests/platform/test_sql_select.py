@@ -16,6 +16,7 @@ import sqlglot
 from platform_support import duckdb_table, numeric_frame, spark_table
 
 from scalewright.engine import ColumnChoice, FitSettings, apply, get_method, restore
+from scalewright.errors import ScalewrightError
 from scalewright.io import read_table
 from scalewright.platform.names import DIALECTS
 from scalewright.platform.select import select_sql
@@ -233,3 +234,27 @@ def test_repeated_headers_use_the_unique_labels():
     assert list(got.columns) == ["x", "x (2)", "note"]
     assert_same(got["x (2)"], apply(frame, project.plan)[0]["x (2)"].to_numpy(), "zscore", "x (2)")
     assert pd.isna(got["note"].iloc[2]) and list(got["note"].iloc[:2]) == ["a", "b"]
+
+
+@pytest.mark.parametrize("engine", ["duckdb", "spark"])
+def test_quantile_scaling_is_a_piecewise_linear_case(engine, request):
+    # Ties (many equal values) map to the middle of their ranks, as the engine does.
+    frame = awkward_frame()
+    frame["ties"] = np.repeat([1.0, 2.0, 2.0, 2.0, 5.0, 7.5, 7.5, 9.0], len(frame) // 8)
+    choices = {"ties": ColumnChoice("quantile"), "signed": ColumnChoice("quantile")}
+    project = fit_project(FrameTable(frame), choices, FitSettings(group_by="block"))
+    spark = request.getfixturevalue("spark") if engine == "spark" else None
+    new = frame.copy()
+    new.loc[new.index[:5], "ties"] = [0.5, 2.0, 3.0, 9.5, 7.5]  # outside, tied, between
+    check_apply_and_restore(
+        make_runner(engine, project, spark), FrameTable(frame), project, new_data=new
+    )
+
+
+def test_quantile_scaling_with_the_normal_shape_has_no_sql():
+    frame = awkward_frame()
+    project = fit_project(
+        FrameTable(frame), {"tiny": ColumnChoice("quantile", {"shape": "normal"})}, FitSettings()
+    )
+    with pytest.raises(ScalewrightError, match="normal quantile function"):
+        select_sql(project)

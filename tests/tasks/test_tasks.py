@@ -9,7 +9,7 @@ from pathlib import Path
 import numpy as np
 import pandas as pd
 import pytest
-from hypothesis import HealthCheck, given, settings
+from hypothesis import HealthCheck, example, given, settings
 from hypothesis import strategies as st
 
 from scalewright.engine import ColumnChoice, FitSettings
@@ -177,6 +177,11 @@ def _frames(draw):
     ),
     suffix=st.sampled_from([".xlsx", ".csv"]),
 )
+@example(
+    frame=([None, None, 28415.0, None, 26323.0, 26323.0], [f"{i:05d}" for i in range(6)]),
+    case=("yeojohnson", {}),
+    suffix=".xlsx",
+)
 def test_property_scale_save_reload_restore(frame, case, suffix):
     values, codes = frame
     method, options = case
@@ -207,7 +212,15 @@ def test_property_scale_save_reload_restore(frame, case, suffix):
             # The logarithm sees x + shift: a value far smaller than the shift is known only
             # to the shift's rounding (log(1 + 3.8e-252) is exactly 0 in doubles).
             scale = max(scale, project.plan.columns["x"].pooled.params["shift"])
-        assert np.nanmax(np.abs(a - b)) <= TOLERANCE.get(method, 1e-12) * scale
+        error = np.nanmax(np.abs(a - b))
+        warned = project.plan.columns["x"].warnings
+        if any("is extreme for these values" in w for w in warned):
+            # Found by this test: a power transform fitted on two distinct values can take
+            # an extreme lambda (-3.2 for 26323 and 28415) that squeezes them into the last
+            # bits of a double, so they cannot be turned back; the fit says so, and how far.
+            assert error > 0 and "only accurate to about" in " ".join(warned)
+        else:
+            assert error <= TOLERANCE.get(method, 1e-12) * scale
 
 
 # --------------------------------------------------------------------------- fitting rules

@@ -96,9 +96,14 @@ def test_check_target_messages(fitted):
     assert check_target(str(folder / "ok.csv"), source=table.source, project=project) == (
         folder / "ok.csv"
     )
+    # another job's own formats (the report's) replace the data formats
+    assert check_target(folder / "r.html", formats=(".html",)) == folder / "r.html"
+    with pytest.raises(WriteError, match=r"cannot write '\.csv' files; use one of \.html"):
+        check_target(folder / "ok.csv", formats=(".html",))
     params = inspect.signature(check_target).parameters
     assert [p.kind for p in params.values()] == [
         inspect.Parameter.POSITIONAL_OR_KEYWORD,
+        inspect.Parameter.KEYWORD_ONLY,
         inspect.Parameter.KEYWORD_ONLY,
         inspect.Parameter.KEYWORD_ONLY,
     ]

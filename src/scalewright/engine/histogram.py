@@ -57,3 +57,18 @@ def bars_in_range(edges: np.ndarray, low: float, high: float) -> tuple[int, int]
     first = int(np.clip(np.searchsorted(edges, low, side="right") - 1, 0, len(edges) - 2))
     last = int(np.clip(np.searchsorted(edges, high, side="left") - 1, 0, len(edges) - 2))
     return min(first, last), max(first, last)
+
+
+COUNT_PER_UNIT = "count per unit of width"
+
+
+def bar_heights(edges: np.ndarray, counts: np.ndarray, usable: np.ndarray):
+    """(heights, per_unit): the counts when the bars are equally wide, else the count per
+    unit of width, so that a bar's area is its number of values and a bar widened by the
+    transform does not look larger than it is. The window and the report both draw so."""
+    x0, x1 = edges[:-1], edges[1:]
+    widths = (x1 - x0)[usable]
+    if widths.size == 0 or np.all(np.abs(widths - widths[0]) <= 1e-9 * abs(widths[0])):
+        return np.asarray(counts, dtype=np.float64), False
+    with np.errstate(divide="ignore", invalid="ignore"):
+        return np.where(usable & (x1 > x0), counts / (x1 - x0), 0.0), True

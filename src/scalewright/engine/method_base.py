@@ -346,32 +346,17 @@ class LinearMethod(Method):
         x, out = _begin(x, out)
         if s.divide == 0:
             return _keep_nonfinite(x, s.add, out)
-        if s.subtract != 0.0:
-            np.subtract(x, s.subtract, out=out)
-        else:
-            np.copyto(out, x)
-        if s.divide != 1.0:
-            out /= s.divide
-        if s.multiply != 1.0:
-            out *= s.multiply
-        if s.add != 0.0:
-            out += s.add
-        return out
+        ops = [(np.subtract, s.subtract, 0.0), (np.divide, s.divide, 1.0)]
+        ops += [(np.multiply, s.multiply, 1.0), (np.add, s.add, 0.0)]
+        return _in_steps(x, out, ops)
 
     def inverse(self, y, params, out=None):
         s = self.steps(params)
         y, out = _begin(y, out)
-        if s.add != 0.0:
-            np.subtract(y, s.add, out=out)
-        else:
-            np.copyto(out, y)
-        if s.multiply != 1.0:
-            out /= s.multiply
-        if s.divide != 1.0:
-            out *= s.divide  # a divisor of 0 (a constant column) turns every value back to it
-        if s.subtract != 0.0:
-            out += s.subtract
-        return out
+        # A divisor of 0 (a constant column) turns every value back to ``subtract``.
+        ops = [(np.subtract, s.add, 0.0), (np.divide, s.multiply, 1.0)]
+        ops += [(np.multiply, s.divide, 1.0), (np.add, s.subtract, 0.0)]
+        return _in_steps(y, out, ops)
 
     def sql_forward(self, x, params):
         from . import sql_terms as S
@@ -400,6 +385,20 @@ class LinearMethod(Method):
         if s.subtract != 0.0:
             out = S.add(out, S.num(s.subtract))
         return out
+
+
+def _in_steps(x: np.ndarray, out: np.ndarray, ops) -> np.ndarray:
+    """Apply ``(ufunc, constant, identity)`` steps in order, skipping a step whose constant
+    is its identity; the first step reads ``x``, the rest work in place (one pass each)."""
+    source = x
+    for ufunc, constant, identity in ops:
+        if constant == identity:
+            continue
+        ufunc(source, constant, out=out)
+        source = out
+    if source is x:
+        np.copyto(out, x)
+    return out
 
 
 def _through_nonfinite(x, func, params, passes_nonfinite: bool, out=None) -> np.ndarray:

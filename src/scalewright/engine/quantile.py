@@ -64,6 +64,16 @@ class Quantile(Method):
         "between quantiles[i] and quantiles[i+1]"
     )
     slow_fit = True  # the quantiles sort the values
+    #: Up to 1,000 quantiles: not among what the aggregate query computes (yet).
+    summary_needs = frozenset({"quantile points"})
+
+    def fit_summary(self, summary, options):
+        from .method_base import FitError
+
+        raise FitError(
+            "quantile scaling needs up to 1,000 quantiles of the values, which the aggregate "
+            "query does not compute; fit it in memory (--engine memory)"
+        )
 
     def fit(self, x, options):
         n = int(min(MAX_QUANTILES, max(x.size, 2)))
@@ -118,3 +128,57 @@ class Quantile(Method):
                 "quantiles",
                 f"must run from the smallest to the largest fitted value [{lo!r}, {hi!r}]",
             )
+
+    # ------------------------------------------------------------------ SQL
+
+    def sql_forward(self, x, params):
+        """A piecewise-linear CASE through the fitted quantiles (uniform shape only: SQL
+        dialects have no normal quantile function to shape it further)."""
+        from . import sql_terms as S
+
+        _uniform_only(params)
+        q = np.asarray(params["quantiles"], dtype=np.float64)
+        r = _ranks(q.size)
+        if q[0] == q[-1]:
+            return S.num(0.0)
+        # Distinct quantiles with the first and last rank each holds (ties share a value).
+        values, first = np.unique(q, return_index=True)
+        last = np.append(first[1:] - 1, q.size - 1)
+        whens = [
+            (S.le(x, S.num(values[0])), S.num(0.0)),
+            (S.ge(x.copy(), S.num(values[-1])), S.num(1.0)),
+        ]
+        for j in range(values.size - 1):
+            if j > 0:  # a value equal to tied quantiles takes the middle of their ranks
+                whens.append(
+                    (S.eq(x.copy(), S.num(values[j])), S.num(0.5 * (r[first[j]] + r[last[j]])))
+                )
+            lo_x, hi_x = values[j], values[j + 1]
+            lo_r, hi_r = r[last[j]], r[first[j + 1]]
+            slope = (hi_r - lo_r) / (hi_x - lo_x)
+            segment = S.add(S.mul(S.num(slope), S.sub(x.copy(), S.num(lo_x))), S.num(lo_r))
+            whens.append((S.lt(x.copy(), S.num(hi_x)), segment))
+        return S.case(*whens)
+
+    def sql_inverse(self, y, params):
+        from . import sql_terms as S
+
+        _uniform_only(params)
+        q = np.asarray(params["quantiles"], dtype=np.float64)
+        r = _ranks(q.size)
+        whens = [(S.or_(S.lt(y, S.num(0.0)), S.gt(y.copy(), S.num(1.0))), None)]
+        for i in range(q.size - 1):
+            slope = (q[i + 1] - q[i]) / (r[i + 1] - r[i])
+            segment = S.add(S.mul(S.num(slope), S.sub(y.copy(), S.num(r[i]))), S.num(q[i]))
+            whens.append((S.lt(y.copy(), S.num(r[i + 1])), segment))
+        return S.case(*whens, default=S.num(q[-1]))
+
+
+def _uniform_only(params) -> None:
+    if params["shape"] != "uniform":
+        from ..errors import ScalewrightError
+
+        raise ScalewrightError(
+            "quantile scaling with the normal shape has no SQL form (SQL dialects have no "
+            "normal quantile function); choose the uniform shape for SQL"
+        )

@@ -66,11 +66,11 @@ def exp_(a) -> exp.Expression:
     return exp.Exp(this=a)
 
 
-def case(*whens: tuple[exp.Expression, exp.Expression], default=None) -> exp.Expression:
-    """``CASE WHEN c1 THEN v1 ... ELSE default END`` (no ELSE: NULL)."""
+def case(*whens: tuple[exp.Expression, exp.Expression | None], default=None) -> exp.Expression:
+    """``CASE WHEN c1 THEN v1 ... ELSE default END`` (no ELSE: NULL; a value None: NULL)."""
     out = exp.Case()
     for cond, value in whens:
-        out = out.when(cond, value)
+        out = out.when(cond, value if value is not None else exp.Null(), copy=False)
     if default is not None:
         out = out.else_(default)
     return out
@@ -86,6 +86,14 @@ def gt(a, b) -> exp.Expression:
 
 def ge(a, b) -> exp.Expression:
     return exp.GTE(this=paren(a), expression=paren(b))
+
+
+def le(a, b) -> exp.Expression:
+    return exp.LTE(this=paren(a), expression=paren(b))
+
+
+def or_(*conds) -> exp.Expression:
+    return exp.or_(*conds)
 
 
 def eq(a, b) -> exp.Expression:

@@ -31,8 +31,13 @@ def make_app(argv: list[str] | None = None):
     app.setApplicationName(APPLICATION)
     app.setApplicationDisplayName(APPLICATION)
     app.setWindowIcon(app_icon())
-    theme.apply_theme(app)
-    theme.configure_plots()
+    # Once per application: setting a style sheet again re-polishes every widget alive,
+    # which crashed (SIGSEGV) when widgets of an earlier window were half torn down (seen
+    # in the test suite, where each window fixture calls make_app).
+    if not app.property("scalewright_themed"):
+        theme.apply_theme(app)
+        theme.configure_plots()
+        app.setProperty("scalewright_themed", True)
     return app
 
 

@@ -25,6 +25,7 @@ from PySide6.QtWidgets import (
 )
 
 from ..engine import get_method
+from ..engine.histogram import COUNT_PER_UNIT, bar_heights
 from ..engine.number_text import number_text
 from ..session import Figures, RangeInfo, Session
 from . import theme
@@ -48,19 +49,6 @@ def fmt(v: float) -> str:
 
 
 FIGURE_LINES = 4
-COUNT_PER_UNIT = "count per unit of width"
-
-
-def bar_heights(x0: np.ndarray, x1: np.ndarray, counts: np.ndarray, valid: np.ndarray):
-    """What to draw: the counts when the bars are equally wide, else count per unit of
-    width, so that a bar's area, not its height, is its number of values and a widened
-    bar does not look larger than it is. Returns ``counts`` itself when unchanged."""
-    widths = (x1 - x0)[valid]
-    if widths.size == 0 or np.all(np.abs(widths - widths[0]) <= 1e-9 * abs(widths[0])):
-        return counts
-    with np.errstate(divide="ignore", invalid="ignore"):
-        heights = np.where(valid & (x1 > x0), counts / (x1 - x0), 0.0)
-    return heights
 
 
 def figures_text(f: Figures | None) -> str:
@@ -142,8 +130,8 @@ class _Side:
         x0, x1 = edges[:-1], edges[1:]
         valid = np.isfinite(x0) & np.isfinite(x1)
         self.x0, self.x1, self.counts, self.valid = x0, x1, counts, valid
-        self.heights = bar_heights(x0, x1, counts, valid)
-        left = COUNT_PER_UNIT if self.heights is not counts else "count"
+        self.heights, per_unit = bar_heights(edges, counts, valid)
+        left = COUNT_PER_UNIT if per_unit else "count"
         if left != self._left_title:  # set only when it changes: setting it lays out anew
             self._left_title = left
             self.plot.setLabel("left", left)

@@ -38,7 +38,7 @@ from ..errors import Cancelled, ScalewrightError
 from ..project import load_project, save_project
 from ..projects import PROJECT_SUFFIX
 from ..session import Session, column_facts
-from . import commands, file_dialogs, theme
+from . import commands, file_dialogs, report_action, theme
 from .apply_dialog import ApplyDialog
 from .column_list import ColumnList
 from .errors import show_error
@@ -231,6 +231,12 @@ class MainWindow(QMainWindow):
             "The query that scales (or turns back) a table with these fitted values in a "
             "data platform, to copy",
         )
+        self.act_report = self._action(
+            "Report…",
+            lambda: report_action.report_from_window(self),
+            None,
+            "Write a report of the project (web page or PDF) for colleagues and auditors",
+        )
         self.act_quit = self._action("Quit", self.close, QKeySequence.StandardKey.Quit)
         self.act_undo = self.stack.createUndoAction(self, "Undo")
         self.act_undo.setShortcut(QKeySequence.StandardKey.Undo)
@@ -311,7 +317,9 @@ class MainWindow(QMainWindow):
         m.addSeparator()
         m.addActions([self.act_save, self.act_save_as])
         m.addSeparator()
-        m.addActions([self.act_export, self.act_apply, self.act_restore, self.act_copy_sql])
+        m.addActions(
+            [self.act_export, self.act_apply, self.act_restore, self.act_copy_sql, self.act_report]
+        )
         m.addSeparator()
         m.addAction(self.act_quit)
         m = mb.addMenu("&Edit")
@@ -393,7 +401,7 @@ class MainWindow(QMainWindow):
             a.setEnabled(has and idle and fitted)
         for a in (self.act_suggest, self.act_leave, self.act_select_all):
             a.setEnabled(has and idle)
-        for a in (self.act_apply, self.act_restore):
+        for a in (self.act_apply, self.act_restore, self.act_report):
             a.setEnabled(idle and fitted)
 
     def _ready_to_write(self, refusal: str = "", *, wait: bool = False) -> bool:

@@ -9,6 +9,7 @@ from __future__ import annotations
 
 import os
 from collections.abc import Mapping
+from concurrent.futures import ThreadPoolExecutor
 from pathlib import Path
 
 import pandas as pd
@@ -87,7 +88,7 @@ def fit_file(
     """Fit on a file through DuckDB; with ``output``, also write the scaled file."""
     from ..cli import build_choices
     from ..tasks import check_choices
-    from .outofcore import apply_source, connection, fit_source, open_source
+    from .outofcore import STAGED, apply_source, connection, fit_source, open_source
 
     if sheet is not None:
         raise OptionError("--sheet is for workbooks; the DuckDB engine reads CSV and Parquet")
@@ -113,8 +114,14 @@ def fit_file(
             )
         check_choices(table, choices)
         normalized = {label: choice.normalized() for label, choice in choices.items()}
-        plan = fit_source(con, source, normalized, settings)
-        size, sha = fingerprint(source.path)
+        # The file's fingerprint is computed beside DuckDB's work (both free the GIL).
+        with ThreadPoolExecutor(max_workers=1) as pool:
+            digest = pool.submit(fingerprint, source.path)
+            plan = fit_source(con, source, normalized, settings, keep=output is not None)
+            reports = []
+            if output is not None:
+                reports = apply_source(con, source, plan, output, counts_from=STAGED)
+            size, sha = digest.result()
         stamp = now_iso()
         project = Project(
             source=Path(os.path.abspath(source.path)),
@@ -130,22 +137,52 @@ def fit_file(
             modified=stamp,
             app_version=__version__,
         )
-        reports = []
-        if output is not None:
-            reports = apply_source(con, source, plan, output)
     return project, reports
 
 
-def apply_file(project: Project, data_path, target: Path, *, clip: bool = False):
+def apply_file(
+    project: Project,
+    data_path,
+    target: Path,
+    *,
+    clip: bool = False,
+    mapping: Mapping[str, str] | None = None,
+):
+    """``apply`` through DuckDB; ``mapping`` pairs file columns with fitted columns."""
+    from ..tasks import MissingFittedColumn
     from .outofcore import apply_source, connection, open_source
 
     plan = project.plan
+    mapping = dict(mapping or {})
+    pairs = dict(mapping)
+    paired = set(mapping.values())
+    for fitted in plan.columns:
+        if fitted not in paired:
+            pairs[fitted] = fitted
     with connection(Path(target).absolute().parent) as con:
-        source = open_source(con, data_path, numbers=set(plan.columns))
-        return apply_source(con, source, plan, target, clip=clip)
+        source = open_source(con, data_path, numbers=set(pairs))
+        for column, fitted in pairs.items():
+            if fitted not in plan.columns:
+                raise ColumnError(
+                    fitted,
+                    f"has no fitted parameters in the project (fitted: {', '.join(plan.columns)})",
+                )
+            if column not in source.names:
+                if column in mapping:
+                    raise ColumnError(column, f"is not in {source.path.name}")
+                raise MissingFittedColumn(
+                    column, f"was fitted in the project but is not in {source.path.name}"
+                )
+        return apply_source(con, source, plan, target, clip=clip, pairs=pairs)
 
 
-def restore_file(project: Project, data_path, target: Path, mapping: Mapping[str, str]):
+def restore_file(
+    project: Project,
+    data_path,
+    target: Path,
+    mapping: Mapping[str, str],
+    names: Mapping[str, str] | None = None,
+):
     from ..tasks import NothingToRestore, auto_mapping
     from .outofcore import connection, open_source, restore_source
 
@@ -175,4 +212,7 @@ def restore_file(project: Project, data_path, target: Path, mapping: Mapping[str
                     f"holds {kind} values in {source.path.name}, not numbers, so it cannot be "
                     "scaled or restored",
                 )
-        return restore_source(con, source, plan, pairs, target)
+        for column in names or {}:
+            if column not in pairs:
+                raise ColumnError(column, "is not restored, so --name cannot rename it")
+        return restore_source(con, source, plan, pairs, target, names=names)

@@ -37,6 +37,8 @@ PART = "scalewright_part"
 GROUP = "scalewright_group"
 ROWS = "scalewright_rows"
 _QUARTILES = ((1, 0.25), (2, 0.5), (3, 0.75))
+#: The needs (``Method.summary_needs``) this query can meet.
+MET_NEEDS = frozenset({"moments", "quartiles", "lambda"})
 
 
 @dataclass(frozen=True)

@@ -25,7 +25,18 @@ from typing import Any
 from ..engine import MAX_GROUPS, FitSettings, FittedColumn, FittedPlan, ParamSet, get_method
 from ..engine.method_base import ValueSummary
 from ..errors import ColumnError, ScalewrightError
-from .fit_query import GROUP, HALF, PART, ROWS, FitColumn, FitSpec, RoundPlan, Search, name
+from .fit_query import (
+    GROUP,
+    HALF,
+    MET_NEEDS,
+    PART,
+    ROWS,
+    FitColumn,
+    FitSpec,
+    RoundPlan,
+    Search,
+    name,
+)
 from .fit_query import quartiles_from as _quartiles
 from .names import platform_names
 
@@ -60,6 +71,7 @@ def spec_for(project) -> FitSpec:
         choice = choice.normalized()
         if choice.method == "none":
             continue
+        check_needs(label, get_method(choice.method))
         columns.append(
             FitColumn(
                 len(columns) + 1,
@@ -77,6 +89,16 @@ def spec_for(project) -> FitSpec:
         column, value = settings.fit_where
         fit_where = (names.get(column, column), value)
     return FitSpec(tuple(columns), group, fit_where)
+
+
+def check_needs(label: str, method) -> None:
+    """ColumnError when the aggregate query cannot give what this method's fit needs."""
+    if not method.summary_needs <= MET_NEEDS:
+        try:
+            method.fit_summary(None, {})
+        except ScalewrightError as err:
+            raise ColumnError(label, str(err)) from None
+        raise ColumnError(label, f"{method.name} cannot be fitted by an aggregate query")
 
 
 def canonical_key(text: str) -> str:

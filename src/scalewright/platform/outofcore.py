@@ -33,11 +33,12 @@ from ..io.kinds import MISSING_MARKERS
 from .dialects import for_dialect
 from .duck_fit import fetch_rows, fit_in_duckdb
 from .fit_query import FitColumn, FitSpec
-from .fitting import canonical_key
+from .fitting import canonical_key, check_needs
 from .names import platform_names
 from .select import key_condition, mapped_body, select_columns
 
 VIEW = "scalewright_source"
+STAGED = "scalewright_fit"
 #: Rows of the start of a text file read to detect its layout and its number columns.
 DETECT_ROWS = 5_000
 #: DuckDB's memory limit: with the interpreter and the libraries this keeps a run well
@@ -142,7 +143,14 @@ def _number_expr(raw: str, opts: ReadOptions) -> str:
         text = f"replace({text}, '{_sql_text(opts.thousands)}', '')"
     if (opts.decimal or ".") == ",":
         text = f"replace({text}, ',', '.')"
-    return f"CASE WHEN lower(trim({raw})) IN ({words}) OR {raw} IS NULL THEN NULL ELSE CAST({text} AS DOUBLE) END"
+    slow = f"CASE WHEN lower(trim({raw})) IN ({words}) THEN NULL ELSE CAST({text} AS DOUBLE) END"
+    if opts.thousands or (opts.decimal or ".") == ",":
+        return f"CASE WHEN {raw} IS NULL THEN NULL ELSE {slow} END"
+    # Most cells are plain numbers: DuckDB's own conversion first, the words only when it
+    # fails (COALESCE evaluates its second argument only for those cells). 'NaN' reads as
+    # a missing value, as in memory.
+    fast = f"NULLIF(TRY_CAST({raw} AS DOUBLE), CAST('nan' AS DOUBLE))"
+    return f"CASE WHEN {raw} IS NULL THEN NULL ELSE COALESCE({fast}, {slow}) END"
 
 
 def _open_parquet(con, path: Path, options: ReadOptions) -> DuckSource:
@@ -227,12 +235,16 @@ def _first_line(err: Exception) -> str:
 # --------------------------------------------------------------------------- fit
 
 
-def fit_source(con, source: DuckSource, choices: dict, settings: FitSettings) -> FittedPlan:
-    """Fit the (normalized) choices on the opened file."""
+def fit_source(
+    con, source: DuckSource, choices: dict, settings: FitSettings, *, keep: bool = False
+) -> FittedPlan:
+    """Fit the (normalized) choices on the opened file. With ``keep``, the table of the
+    columns read (``STAGED``, every row) is left for the apply that follows."""
     columns = []
     for label, choice in choices.items():
         if choice.method == "none":
             continue
+        check_needs(label, get_method(choice.method))
         columns.append(
             FitColumn(
                 len(columns) + 1,
@@ -255,13 +267,14 @@ def fit_source(con, source: DuckSource, choices: dict, settings: FitSettings) ->
     _run(
         con,
         source,
-        f"CREATE OR REPLACE TABLE scalewright_fit AS SELECT {', '.join(_q(n) for n in wanted)} FROM {VIEW}",
+        f"CREATE OR REPLACE TABLE {STAGED} AS SELECT {', '.join(_q(n) for n in wanted)} FROM {VIEW}",
         fetch=False,
     )
     try:
-        return fit_in_duckdb(con, spec, exp.to_table("scalewright_fit"), settings)
+        return fit_in_duckdb(con, spec, exp.to_table(STAGED), settings)
     finally:
-        con.execute("DROP TABLE IF EXISTS scalewright_fit")
+        if not keep:
+            con.execute(f"DROP TABLE IF EXISTS {STAGED}")
 
 
 def _typed_key(source: DuckSource, column: str, value: str) -> str:
@@ -305,8 +318,10 @@ def count_reports(
     *,
     restoring: bool,
     clip: bool,
+    table: str = VIEW,
 ) -> list[ColumnReport]:
-    """The per-column counts the in-memory apply and restore report, in one pass."""
+    """The per-column counts the in-memory apply and restore report, in one pass over
+    ``table`` (the file's view, or a table holding its number columns already)."""
     items = []
     mapped = []
     for j, (name, (_, fc)) in enumerate(pairs.items()):
@@ -363,7 +378,7 @@ def count_reports(
         items.append(keys_sql)
     inner = exp.select(
         *[S.column(n) for n in dict.fromkeys([*pairs, *([group] if group else [])])], *mapped
-    ).from_(VIEW)
+    ).from_(table)
     query = exp.select(*items).from_(inner.subquery("mapped"))
     row = _run(con, source, for_dialect(query, "duckdb").sql(dialect="duckdb"))[0]
     reports = []
@@ -432,9 +447,22 @@ def _warn(report: ColumnReport, fc, restoring: bool, clip: bool) -> None:
         )
 
 
-def apply_source(con, source: DuckSource, plan: FittedPlan, target: Path, *, clip: bool = False):
-    """Scale the opened file with ``plan`` and write ``target``; the reports."""
-    for label in plan.columns:
+def apply_source(
+    con,
+    source: DuckSource,
+    plan: FittedPlan,
+    target: Path,
+    *,
+    clip: bool = False,
+    counts_from: str = VIEW,
+    pairs: dict[str, str] | None = None,
+):
+    """Scale the opened file with ``plan`` and write ``target``; the reports.
+
+    ``counts_from`` may name a table that already holds the file's fitted columns (and the
+    grouping column), so that counting does not read the file again."""
+    pairs = pairs or {label: label for label in plan.columns}
+    for label in pairs:
         if label not in source.names:
             raise ColumnError(label, f"was fitted in the project but is not in {source.path.name}")
         kind = source.kinds.get(label)
@@ -445,16 +473,17 @@ def apply_source(con, source: DuckSource, plan: FittedPlan, target: Path, *, cli
             )
     group_by = plan.settings.group_by
     group = source.names.get(group_by) if group_by and group_by in source.names else None
-    pairs = {source.names[label]: plan.columns[label] for label in plan.columns}
+    mapped = {source.names[label]: plan.columns[fitted] for label, fitted in pairs.items()}
     columns = [source.names[label] for label in source.labels]
-    select = select_columns(columns, pairs, exp.to_table(VIEW), clip=clip, group=group)
+    select = select_columns(columns, mapped, exp.to_table(VIEW), clip=clip, group=group)
     reports = count_reports(
         con,
         source,
-        {source.names[lab]: (lab, fc) for lab, fc in plan.columns.items()},
+        {source.names[lab]: (fitted, plan.columns[fitted]) for lab, fitted in pairs.items()},
         group,
         restoring=False,
         clip=clip,
+        table=counts_from,
     )
     for r in reports:
         r.column = _label_of(source, r.column)
@@ -467,13 +496,25 @@ def apply_source(con, source: DuckSource, plan: FittedPlan, target: Path, *, cli
     return reports
 
 
-def restore_source(con, source: DuckSource, plan: FittedPlan, pairs: dict[str, str], target: Path):
-    """Restore the opened file's columns (label -> fitted column) and write ``target``."""
+def restore_source(
+    con,
+    source: DuckSource,
+    plan: FittedPlan,
+    pairs: dict[str, str],
+    target: Path,
+    *,
+    names: dict[str, str] | None = None,
+):
+    """Restore the opened file's columns (label -> fitted column) and write ``target``;
+    ``names`` gives restored columns new names in the output."""
     group_by = plan.settings.group_by
     group = source.names.get(group_by) if group_by and group_by in source.names else None
     mapped = {source.names[label]: plan.columns[fitted] for label, fitted in pairs.items()}
     columns = [source.names[label] for label in source.labels]
-    select = select_columns(columns, mapped, exp.to_table(VIEW), restoring=True, group=group)
+    renamed = {source.names[label]: new for label, new in (names or {}).items()}
+    select = select_columns(
+        columns, mapped, exp.to_table(VIEW), restoring=True, group=group, renamed=renamed
+    )
     reports = count_reports(
         con,
         source,
@@ -484,8 +525,6 @@ def restore_source(con, source: DuckSource, plan: FittedPlan, pairs: dict[str, s
     )
     for r in reports:
         r.column = _label_of(source, r.column)
-        r.unseen_groups = []
-        r.warnings = [w for w in r.warnings if not w.startswith("groups not seen")]
     write_select(con, source, select, target)
     return reports
 
