@@ -240,6 +240,7 @@ class HistogramPanel(QWidget):
         session.table_loaded.connect(lambda: self.show_column(session.current, force=True))
         session.selection_changed.connect(lambda _labels: self.show_column(session.current))
         session.fitted.connect(self._on_fitted)
+        session.scaled_figures_ready.connect(self._on_figures_ready)
         session.settings_changed.connect(lambda: self.show_column(session.current, force=True))
         self._figures_timer = QTimer(self)
         self._figures_timer.setSingleShot(True)
@@ -336,10 +337,18 @@ class HistogramPanel(QWidget):
         if self.range is not None and self.range_button.isChecked():
             self.set_range(self.range.low, self.range.high)
 
+    def _on_figures_ready(self, label: str) -> None:
+        if label == self.label:
+            self._update_scaled_figures()
+
     def _update_scaled_figures(self) -> None:
         s = self.session
-        if self.label is not None and not s.fitting(self.label) and not s.fit_error(self.label):
-            self.scaled.figures.setText(figures_text(s.scaled_figures(self.label)))
+        label = self.label
+        if label is None or s.fitting(label) or s.fit_error(label):
+            return
+        if s.scaled_figures_waiting(label):
+            return  # "…" stays until they land (_on_figures_ready)
+        self.scaled.figures.setText(figures_text(s.scaled_figures(label)))
 
     # ------------------------------------------------------------------ hover
 

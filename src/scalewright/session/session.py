@@ -41,6 +41,7 @@ class Session(ColumnReads):
     table_loaded = Signal()
     choices_changed = Signal(list)  # labels whose choice changed
     fitted = Signal(str)  # label refitted (or its fit failed)
+    scaled_figures_ready = Signal(str)  # label's scaled figures, made in the background
     settings_changed = Signal()
     selection_changed = Signal(list)
     dirty_changed = Signal(bool)
@@ -60,6 +61,7 @@ class Session(ColumnReads):
         self.column_figures = ColumnFigures(pd.DataFrame(), bins)
         self.fits = FitStore()
         self.fits.on_landed = self._fit_landed
+        self.fits.on_figures = self.scaled_figures_ready.emit
 
     # ------------------------------------------------------------------ table
 
