@@ -272,6 +272,8 @@ class HistogramPanel(QWidget):
             return
         n_sel = len(s.selection)
         extra = f"  (first of {n_sel} selected)" if n_sel > 1 else ""
+        if s.sample is not None:  # said where the user looks: figures come from a sample
+            extra += f"  (a sample of {s.sample.rows:,} rows of {s.sample.total_rows:,})"
         self.heading.setText(s.header(label) + extra)
         h = s.histogram(label)
         self.original.set_bars(h.edges, h.counts)
@@ -322,7 +324,9 @@ class HistogramPanel(QWidget):
             self._figures_timer.start(0)  # figures follow right after the bars are drawn
         self.scaled.set_axis_title(f"{s.header(label)}, scaled")
         fc = s.fitted_column(label)
-        if fc is not None and fc.groups:
+        if s.sample is not None:
+            self.note.setText(s.sample.describe() + ".")
+        elif fc is not None and fc.groups:
             self.note.setText(
                 f"Fitted separately for each group of '{s.settings.group_by}'. The scaled "
                 "histogram uses the values fitted on all rows, so it is a guide only."

@@ -37,7 +37,7 @@ from ..engine import METHODS
 from ..errors import Cancelled, ScalewrightError
 from ..project import load_project, save_project
 from ..projects import PROJECT_SUFFIX
-from ..session import Session, column_facts
+from ..session import Session, column_facts, large_file
 from . import commands, file_dialogs, report_action, theme
 from .apply_dialog import ApplyDialog
 from .column_list import ColumnList
@@ -399,6 +399,9 @@ class MainWindow(QMainWindow):
         fitted = not self.session.fits_pending
         for a in (self.act_save, self.act_save_as, self.act_export, self.act_copy_sql):
             a.setEnabled(has and idle and fitted)
+        # Exporting writes the loaded rows: of a sampled file, only the sample. The whole
+        # file is scaled with "Apply to another file" (or `scalewright apply`) instead.
+        self.act_export.setEnabled(self.act_export.isEnabled() and self.session.sample is None)
         for a in (self.act_suggest, self.act_leave, self.act_select_all):
             a.setEnabled(has and idle)
         for a in (self.act_apply, self.act_restore, self.act_report):
@@ -526,11 +529,19 @@ class MainWindow(QMainWindow):
         path = Path(path)
         bins = self.session.bins
 
+        sampled: list = []  # the SampleInfo of a file too large to hold whole
+
         def work(progress, cancelled):
             where, found = (path, None) if find is None else find()
             if where is None:
                 return None, None, found
-            table = swio.read_table(where, options, progress=progress, cancelled=cancelled)
+            if show is None and large_file.too_large(where):
+                # Too large to hold whole (the command line's rule): a sample is shown,
+                # and every fit reads the whole file through DuckDB.
+                table, info = large_file.read_sample(where)
+                sampled.append(info)
+            else:
+                table = swio.read_table(where, options, progress=progress, cancelled=cancelled)
             # Histogram and summary of every number column, here rather than on the
             # interface thread the first time each column is selected.
             facts = column_facts(table, bins, cancelled)
@@ -544,13 +555,15 @@ class MainWindow(QMainWindow):
                 if not show(table, facts, found):
                     return
             else:
-                self.session.load_table(table, facts=facts)
+                self.session.load_table(table, facts=facts, sample=sampled[0] if sampled else None)
                 self.stack.clear()
                 self.stack.setClean()
             source = Path(table.source)
             self.add_recent(source)
             self._remember_dir(source)
-            if show is None:
+            if show is None and sampled:
+                self.notify(f"Opened {source.name}. {sampled[0].describe()}.", 20000)
+            elif show is None:
                 notes = list(getattr(table, "notes", []) or [])
                 self.notify(
                     f"Opened {source.name}: {len(table.data):,} rows"

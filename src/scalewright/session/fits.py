@@ -155,6 +155,11 @@ class FitStore:
         self.fit_count = 0  # how many times a column was fitted (tests and benchmark)
         self.runner: Runner | None = None  # None (no window): every fit happens at once
         self.background_values = BACKGROUND_VALUES
+        # Set for a file too large to hold whole (a sample is loaded): every fit is made
+        # on the whole file by this call (label, choice, settings) -> (FittedColumn, rows
+        # fitted), in the background when a runner is attached.
+        self.whole_file_fit: Callable[..., tuple[FittedColumn, int]] | None = None
+        self.whole_file_rows: int | None = None
         # Called with the label when a background fit lands (on the interface thread).
         self.on_landed: Callable[[str, tuple], None] = lambda label, key: None
         # Called with the label when scaled figures made in the background land.
@@ -206,7 +211,9 @@ class FitStore:
         return self._fit_inputs()[1]
 
     def rows_fitted(self) -> int:
-        """How many rows the fit settings choose."""
+        """How many rows the fit settings choose (in the whole file, for a sample)."""
+        if self.whole_file_fit is not None and self.whole_file_rows is not None:
+            return self.whole_file_rows
         mask, _ = self._fit_inputs()
         return int(np.count_nonzero(mask)) if mask is not None else 0
 
@@ -225,6 +232,10 @@ class FitStore:
         mask, groups = self._fit_inputs()
         if self._settings_error is not None:
             result: FitOutcome = FitFailed(self._settings_error)
+        elif self.whole_file_fit is not None:
+            result = self._whole_file_outcome(label, choice, self.settings)
+            if isinstance(result, Fitted):
+                self.fit_count += 1
         else:
             assert self._figures is not None
             result = _fit(self._figures.values(label), choice, label, mask, groups)
@@ -232,6 +243,20 @@ class FitStore:
                 self.fit_count += 1
         per_label[key] = result
         return result
+
+    def _whole_file_outcome(
+        self, label: str, choice: ColumnChoice, settings: FitSettings
+    ) -> FitOutcome:
+        """The choice fitted on the whole file (safe in a worker thread)."""
+        assert self.whole_file_fit is not None
+        try:
+            fc, rows = self.whole_file_fit(label, choice, settings)
+        except ScalewrightError as err:
+            return FitFailed(str(err))
+        except Exception as err:  # shown as the column's problem, not lost in a thread
+            return FitFailed(f"column '{label}': the fit failed ({type(err).__name__}: {err})")
+        self.whole_file_rows = rows
+        return Fitted(fc)
 
     def start(self, label: str, choice: ColumnChoice) -> None:
         """Fit the choice now, or hand a slow fit of a large column to the runner."""
@@ -241,6 +266,15 @@ class FitStore:
         mask, groups = self._fit_inputs()
         slow = get_method(choice.method).slow_fit or groups is not None
         assert self._figures is not None
+        whole_file = self.whole_file_fit is not None and self._settings_error is None
+        if whole_file and self.runner is not None:  # every fit reads the whole file
+            settings, generation = self.settings, self._generation
+            self._pending.add((label, key))
+            self.runner(
+                lambda: self._whole_file_outcome(label, choice, settings),
+                lambda result: self._landed(label, key, generation, result),
+            )
+            return
         if (
             self.runner is None
             or not slow

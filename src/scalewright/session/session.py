@@ -51,6 +51,7 @@ class Session(ColumnReads):
         self.bins = bins
         self.table: Any | None = None  # scalewright.io.Table
         self._labels_of: Any = None  # the columns index _label_positions was made from
+        self.sample: Any = None  # large_file.SampleInfo when the table is a file's sample
         self._label_positions: dict[str, int] = {}
         self._choices: dict[str, ColumnChoice] = {}
         self._selection: list[str] = []
@@ -131,8 +132,12 @@ class Session(ColumnReads):
         fitted: Mapping[str, FittedColumn] | None = None,
         fitted_on: Mapping[str, FittedOn] | None = None,
         facts: Mapping[str, ColumnFacts] | None = None,
+        sample: Any = None,
     ) -> None:
         """Show a newly read table, optionally with a project's choices, in one update.
+
+        ``sample`` (a ``large_file.SampleInfo``) says the table is a sample of a file too
+        large to hold whole: every fit is then made on the whole file.
 
         Listeners hear ``table_loaded`` once (not one event per column). Choices for
         columns that are not in the table are dropped; invalid ones raise before anything
@@ -152,6 +157,9 @@ class Session(ColumnReads):
         self._choices = {lab: new_choices.get(lab, ColumnChoice()) for lab in labels}
         self._project_path = Path(project_path) if project_path else None
         self._selection = []
+        self.sample = sample
+        self.fits.whole_file_fit = None if sample is None else sample.fit_with_rows
+        self.fits.whole_file_rows = None
         self.column_figures = ColumnFigures(table.data, self.bins, facts)
         self.fits.reset(self.column_figures, table.data, settings or FitSettings())
         self._kept = {}
