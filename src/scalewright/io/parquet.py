@@ -72,7 +72,7 @@ def read_parquet_table(
                 0, preview_rows
             )
         else:
-            table = pq.read_table(path)
+            table = pq.ParquetFile(path).read()  # (the dataset reader refuses repeated names)
     except (pa.ArrowException, OSError) as err:
         raise ReadError(path, f"this is not a Parquet file that can be read ({err})") from None
     headers = [str(n) for n in table.column_names]
