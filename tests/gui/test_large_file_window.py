@@ -46,6 +46,7 @@ def test_the_window_says_it_shows_a_sample_and_fits_on_the_whole_file(sampled):
     note = sampled.histograms.note.text()
     assert "sample of 500 rows of 2,412" in note and "fitted on the whole file" in note
     assert "sample of 500 rows of 2,412" in sampled.statusBar().currentMessage()
+    assert sampled.preview.count.text() == "a sample of 500 rows of 2,412, 13 columns"
 
 
 def test_parameters_come_from_the_whole_file(qtbot, sampled):

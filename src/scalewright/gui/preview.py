@@ -214,7 +214,9 @@ class PreviewPanel(QWidget):
     def _on_table(self) -> None:
         n = self.session.n_rows
         cols = len(self.session.labels)
-        self.count.setText(f"{n:,} rows, {cols} columns" if self.session.table is not None else "")
+        sample = self.session.sample
+        rows = f"a sample of {n:,} rows of {sample.total_rows:,}" if sample else f"{n:,} rows"
+        self.count.setText(f"{rows}, {cols} columns" if self.session.table is not None else "")
 
     def _on_selection(self, labels: list[str]) -> None:
         if labels and labels[0] in self.session.labels:
