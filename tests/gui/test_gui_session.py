@@ -29,6 +29,9 @@ class Recorder:
         session.settings_changed.connect(lambda: self.events.append(("settings",)))
         session.selection_changed.connect(lambda labels: self.events.append(("selection", labels)))
         session.dirty_changed.connect(lambda d: self.events.append(("dirty", d)))
+        session.scaled_figures_ready.connect(
+            lambda label: self.events.append(("scaled_figures_ready", label))
+        )
 
     def of(self, name: str) -> list[tuple]:
         return [e for e in self.events if e[0] == name]
@@ -419,9 +422,32 @@ def test_switching_on_before_a_fit_lands_shows_the_latest_choice(session, stack,
     assert session.choice("yield_kg").method == "yeojohnson"
     assert session.fitted_column("yield_kg").method == "yeojohnson"
     assert rec.of("fitted") == [("fitted", "yield_kg")]  # only the current choice's landing
-    stack.undo()  # back to Box-Cox: its fit already landed, nothing waits
-    assert not session.fitting("yield_kg") and held.calls == []
+    stack.undo()  # back to Box-Cox: its fit already landed, no fit waits
+    assert not session.fitting("yield_kg")
+    # only the two landed fits' scaled figures are held (made after the bars are drawn)
+    assert [deliver.__qualname__.split(".")[1] for _, deliver in held.calls] == [
+        "_figures_in_background",
+        "_figures_in_background",
+    ]
     assert session.fitted_column("yield_kg").method == "boxcox"
+
+
+def test_scaled_figures_follow_the_landed_fit_in_their_own_job(session, stack, held):
+    """The scaled bars need only the fit; the figures under them need every scaled value,
+    so they are made in a second job and announced when they land."""
+    commands.set_method(stack, session, ["yield_kg"], "yeojohnson")
+    rec = Recorder(session)
+    held.run_all()  # the fit lands: bars can be drawn, the figures are on their way
+    assert session.fitted_column("yield_kg") is not None
+    assert not np.isnan(session.scaled_edges("yield_kg")).any()
+    assert session.scaled_figures_waiting("yield_kg") and len(held.calls) == 1
+    held.run_all()
+    assert not session.scaled_figures_waiting("yield_kg")
+    assert rec.of("scaled_figures_ready") == [("scaled_figures_ready", "yield_kg")]
+    scaled = session.fitted_column("yield_kg").forward(session.values("yield_kg"))
+    figures = session.scaled_figures("yield_kg")  # the ones that landed, not made again
+    assert figures.mean == pytest.approx(np.nanmean(scaled), rel=1e-12)  # numpy
+    assert figures.n == int(np.isfinite(scaled).sum())
 
 
 def test_column_facts_are_what_the_session_would_compute(harvest_table):

@@ -34,17 +34,24 @@ class BoxCoxLikelihood:
     The second form has no large terms that cancel (sum(L - c) is about 0), so the
     likelihood is evaluated to nearly full precision even where it is very flat, which
     keeps the maximum where it truly is.
+
+    With ``counts``, ``x`` holds distinct values and ``counts`` how often each occurs: the
+    same sums, weighted (see ``distinct_values``).
     """
 
-    def __init__(self, x: np.ndarray) -> None:
+    def __init__(self, x: np.ndarray, counts: np.ndarray | None = None) -> None:
         logs = np.log(x)
-        self.n = x.size
-        self.sum_logs = float(np.sum(logs))
-        self.center = float(np.mean(logs))
+        self.counts = counts
+        self.n = x.size if counts is None else float(np.sum(counts))
+        self.sum_logs = self._sum(logs)
+        self.center = self.sum_logs / self.n if counts is not None else float(np.mean(logs))
         logs -= self.center  # centred logarithms, computed once
         self.centered = logs
-        self.sum_centered = float(np.sum(logs))
+        self.sum_centered = self._sum(logs)
         self._buffer = np.empty_like(logs)
+
+    def _sum(self, v: np.ndarray) -> float:
+        return float(np.sum(v)) if self.counts is None else float(np.dot(self.counts, v))
 
     def _log_var(self, lam: float) -> float:
         """log(var(expm1(lam * (L - c)) / lam)), accurate also for lambda near 0."""
@@ -55,9 +62,12 @@ class BoxCoxLikelihood:
             np.multiply(self.centered, lam, out=d)
             np.expm1(d, out=d)
         # population variance of d without a full-size temporary: mean, subtract, squares
-        m = float(np.mean(d))
+        m = float(np.mean(d)) if self.counts is None else self._sum(d) / self.n
         centred = np.subtract(d, m, out=self._buffer)
-        v = float(np.einsum("i,i->", centred, centred)) / self.n
+        if self.counts is None:
+            v = float(np.einsum("i,i->", centred, centred)) / self.n
+        else:
+            v = float(np.einsum("i,i,i->", self.counts, centred, centred)) / self.n
         if lam != 0.0:
             v /= lam * lam
         return np.log(v) if v > 0 and np.isfinite(v) else -np.inf
@@ -74,6 +84,34 @@ class BoxCoxLikelihood:
         return np.inf if not np.isfinite(value) else -value
 
 
+#: From this many values on, the lambda search first looks for repeated values.
+DISTINCT_FROM = 50_000
+
+
+def distinct_values(x: np.ndarray) -> tuple[np.ndarray, np.ndarray] | None:
+    """(distinct values, how often each occurs) when ``x`` repeats its values a lot, else
+    None.
+
+    Measurements are mostly written to a fixed number of decimals, so a million of them
+    often hold only a few thousand different values. The likelihood is then a weighted
+    sum over those: every evaluation of the search touches thousands of numbers instead
+    of a million, and the lambda is the same maximum to rounding (the sums are only added
+    up in another order). One look at a strided sample decides whether counting is worth
+    it; the counting is one hashing pass, no sort.
+    """
+    if x.size < DISTINCT_FROM:
+        return None
+    sample = x[:: x.size // 4096]
+    if np.unique(sample).size > sample.size // 2:
+        return None  # mostly different values: count nothing
+    import pandas as pd
+
+    codes, uniques = pd.factorize(x)
+    if uniques.size > x.size // 8:
+        return None
+    return np.asarray(uniques, dtype=np.float64), np.bincount(codes).astype(np.float64)
+
+
 #: scipy.stats.boxcox_normmax's default ``ymax``: the largest float over a safety factor
 #: of 10000; lambdas that would send a transformed value beyond it are constrained.
 BOXCOX_YMAX = float(np.finfo(np.float64).max) / 10000
@@ -88,7 +126,8 @@ def boxcox_lambda(x: np.ndarray, report_constrained: bool = False):
     """
     from scipy import optimize
 
-    like = BoxCoxLikelihood(x)
+    distinct = distinct_values(x)
+    like = BoxCoxLikelihood(x) if distinct is None else BoxCoxLikelihood(*distinct)
     # scipy.stats.boxcox_normmax(method="mle") uses optimize.brent with brack=(-2, 2).
     with np.errstate(all="ignore"):  # brent's arithmetic on infinite llf values warns
         lam = float(optimize.brent(like.neg_llf, brack=(-2.0, 2.0), tol=_BRENT_TOL))
@@ -144,14 +183,25 @@ def boxcox_inverse(y: np.ndarray, lam: float) -> np.ndarray:
 
 
 class YeoJohnsonLikelihood:
-    """Negative profile log-likelihood of Yeo-Johnson lambda on precomputed logarithms."""
+    """Negative profile log-likelihood of Yeo-Johnson lambda on precomputed logarithms.
 
-    def __init__(self, x: np.ndarray) -> None:
+    With ``counts``, ``x`` holds distinct values and ``counts`` how often each occurs (see
+    ``distinct_values``)."""
+
+    def __init__(self, x: np.ndarray, counts: np.ndarray | None = None) -> None:
         pos = x >= 0
         self.log_pos = np.log1p(x[pos])
         self.log_neg = np.log1p(-x[~pos])
-        self.n = x.size
-        self.sum_signed_logs = float(np.sum(self.log_pos) - np.sum(self.log_neg))
+        if counts is None:
+            self.counts = None
+            self.n = x.size
+            self.sum_signed_logs = float(np.sum(self.log_pos) - np.sum(self.log_neg))
+        else:
+            self.counts = np.concatenate([counts[pos], counts[~pos]])
+            self.n = float(np.sum(counts))
+            self.sum_signed_logs = float(
+                np.dot(counts[pos], self.log_pos) - np.dot(counts[~pos], self.log_neg)
+            )
         self._buffer = np.empty(x.size)
 
     def transformed(self, lam: float) -> np.ndarray:
@@ -171,9 +221,15 @@ class YeoJohnsonLikelihood:
             out[k:] /= -(2.0 - lam)
         return out
 
+    def _variance(self, t: np.ndarray) -> float:
+        if self.counts is None:
+            return float(np.var(t))
+        d = t - float(np.dot(self.counts, t)) / self.n
+        return float(np.einsum("i,i,i->", self.counts, d, d)) / self.n
+
     def neg_llf(self, lam: float) -> float:
         with np.errstate(over="ignore", invalid="ignore"):
-            v = float(np.var(self.transformed(lam)))
+            v = self._variance(self.transformed(lam))
         if not (v > 0 and np.isfinite(v)):
             return np.inf
         return -((lam - 1.0) * self.sum_signed_logs - 0.5 * self.n * np.log(v))
@@ -190,7 +246,8 @@ def yeojohnson_lambda(x: np.ndarray) -> float:
         return 1.0
     from scipy import optimize
 
-    like = YeoJohnsonLikelihood(x)
+    distinct = distinct_values(x)
+    like = YeoJohnsonLikelihood(x) if distinct is None else YeoJohnsonLikelihood(*distinct)
     with np.errstate(all="ignore"):
         return float(optimize.fminbound(like.neg_llf, lb, ub, xtol=_BRENT_TOL))
 

@@ -8,6 +8,7 @@ from PySide6.QtCore import (
     QItemSelectionModel,
     QModelIndex,
     Qt,
+    QTimer,
     Signal,
 )
 from PySide6.QtGui import QActionGroup, QBrush, QColor
@@ -41,6 +42,13 @@ class ColumnModel(QAbstractTableModel):
         self._allowed: dict[str, tuple[swio.ColumnKind, ...]] = {}
         self._code_reason: dict[str, str | None] = {}
         session.table_loaded.connect(self._reset)
+        # A method switch says both "choices changed" and "fitted": the rows are marked
+        # once, when control returns to the event loop (each mark re-measures the
+        # columns sized to their contents).
+        self._pending: dict[str, None] = {}
+        self._flush = QTimer(self)
+        self._flush.setSingleShot(True)
+        self._flush.timeout.connect(self._mark_pending)
         session.choices_changed.connect(self._rows_changed)
         session.fitted.connect(lambda label: self._rows_changed([label]))
         session.settings_changed.connect(self._all_changed)
@@ -52,10 +60,15 @@ class ColumnModel(QAbstractTableModel):
         self.endResetModel()
 
     def _rows_changed(self, labels: list[str]) -> None:
+        self._pending.update(dict.fromkeys(labels))
+        self._flush.start(0)
+
+    def _mark_pending(self) -> None:
+        labels, self._pending = self._pending, {}
         for label in labels:
             if label in self._labels:
                 row = self._labels.index(label)
-                self.dataChanged.emit(self.index(row, 0), self.index(row, WARN))
+                self.dataChanged.emit(self.index(row, METHOD), self.index(row, WARN))
 
     def _all_changed(self) -> None:
         if self._labels:

@@ -14,7 +14,15 @@ import math
 import numpy as np
 import pyqtgraph as pg
 from PySide6.QtCore import QPointF, Qt, QTimer
-from PySide6.QtWidgets import QGridLayout, QHBoxLayout, QLabel, QPushButton, QVBoxLayout, QWidget
+from PySide6.QtWidgets import (
+    QGraphicsItem,
+    QGridLayout,
+    QHBoxLayout,
+    QLabel,
+    QPushButton,
+    QVBoxLayout,
+    QWidget,
+)
 
 from ..engine import get_method
 from ..engine.histogram import COUNT_PER_UNIT, bar_heights
@@ -69,6 +77,11 @@ class _Side:
         self.plot.showGrid(x=False, y=True, alpha=0.15)
         self.plot.setLabel("left", "count")
         self._left_title = "count"
+        # Axes are drawn from a pixmap while their range and labels stay the same: a
+        # method switch leaves three of the four axes as they were, and replaying their
+        # recorded drawing took longer than the rest of the plot.
+        for name in ("left", "bottom"):
+            self.plot.getAxis(name).setCacheMode(QGraphicsItem.CacheMode.DeviceCoordinateCache)
         self.title = title
         self.colour = colour
         self.bars = pg.BarGraphItem(
@@ -227,6 +240,7 @@ class HistogramPanel(QWidget):
         session.table_loaded.connect(lambda: self.show_column(session.current, force=True))
         session.selection_changed.connect(lambda _labels: self.show_column(session.current))
         session.fitted.connect(self._on_fitted)
+        session.scaled_figures_ready.connect(self._on_figures_ready)
         session.settings_changed.connect(lambda: self.show_column(session.current, force=True))
         self._figures_timer = QTimer(self)
         self._figures_timer.setSingleShot(True)
@@ -258,6 +272,8 @@ class HistogramPanel(QWidget):
             return
         n_sel = len(s.selection)
         extra = f"  (first of {n_sel} selected)" if n_sel > 1 else ""
+        if s.sample is not None:  # said where the user looks: figures come from a sample
+            extra += f"  (a sample of {s.sample.rows:,} rows of {s.sample.total_rows:,})"
         self.heading.setText(s.header(label) + extra)
         h = s.histogram(label)
         self.original.set_bars(h.edges, h.counts)
@@ -308,7 +324,9 @@ class HistogramPanel(QWidget):
             self._figures_timer.start(0)  # figures follow right after the bars are drawn
         self.scaled.set_axis_title(f"{s.header(label)}, scaled")
         fc = s.fitted_column(label)
-        if fc is not None and fc.groups:
+        if s.sample is not None:
+            self.note.setText(s.sample.describe() + ".")
+        elif fc is not None and fc.groups:
             self.note.setText(
                 f"Fitted separately for each group of '{s.settings.group_by}'. The scaled "
                 "histogram uses the values fitted on all rows, so it is a guide only."
@@ -323,10 +341,18 @@ class HistogramPanel(QWidget):
         if self.range is not None and self.range_button.isChecked():
             self.set_range(self.range.low, self.range.high)
 
+    def _on_figures_ready(self, label: str) -> None:
+        if label == self.label:
+            self._update_scaled_figures()
+
     def _update_scaled_figures(self) -> None:
         s = self.session
-        if self.label is not None and not s.fitting(self.label) and not s.fit_error(self.label):
-            self.scaled.figures.setText(figures_text(s.scaled_figures(self.label)))
+        label = self.label
+        if label is None or s.fitting(label) or s.fit_error(label):
+            return
+        if s.scaled_figures_waiting(label):
+            return  # "…" stays until they land (_on_figures_ready)
+        self.scaled.figures.setText(figures_text(s.scaled_figures(label)))
 
     # ------------------------------------------------------------------ hover
 

@@ -45,7 +45,7 @@ from ..errors import Cancelled, ScalewrightError
 from ..guide import CAUTION_KEEP_PROJECT
 from ..project import load_project, save_project
 from ..projects import PROJECT_SUFFIX
-from ..session import Session, column_facts
+from ..session import Session, column_facts, large_file
 from . import commands, file_dialogs, kind_correction, report_action, theme
 from .apply_dialog import ApplyDialog
 from .column_list import ColumnList
@@ -250,6 +250,13 @@ class MainWindow(QMainWindow):
             "Turn scaled values (for example a model's predictions) back into original units",
             "restore",
         )
+        self.act_copy_sql = self._action(
+            "Copy as SQL…",
+            self.open_sql_dialog,
+            "Ctrl+Shift+C",
+            "The query that scales (or turns back) a table with these fitted values in a "
+            "data platform, to copy",
+        )
         self.act_report = self._action(
             "Report…",
             lambda: report_action.report_from_window(self),
@@ -336,7 +343,9 @@ class MainWindow(QMainWindow):
         m.addSeparator()
         m.addActions([self.act_save, self.act_save_as])
         m.addSeparator()
-        m.addActions([self.act_export, self.act_apply, self.act_restore, self.act_report])
+        m.addActions(
+            [self.act_export, self.act_apply, self.act_restore, self.act_copy_sql, self.act_report]
+        )
         m.addSeparator()
         m.addAction(self.act_quit)
         m = mb.addMenu("&Edit")
@@ -414,8 +423,11 @@ class MainWindow(QMainWindow):
         has = self.session.table is not None
         idle = not self.jobs.busy
         fitted = not self.session.fits_pending
-        for a in (self.act_save, self.act_save_as, self.act_export):
+        for a in (self.act_save, self.act_save_as, self.act_export, self.act_copy_sql):
             a.setEnabled(has and idle and fitted)
+        # Exporting writes the loaded rows: of a sampled file, only the sample. The whole
+        # file is scaled with "Apply to another file" (or `scalewright apply`) instead.
+        self.act_export.setEnabled(self.act_export.isEnabled() and self.session.sample is None)
         for a in (self.act_suggest, self.act_leave, self.act_select_all):
             a.setEnabled(has and idle)
         for a in (self.act_apply, self.act_restore, self.act_report):
@@ -557,11 +569,19 @@ class MainWindow(QMainWindow):
         path = Path(path)
         bins = self.session.bins
 
+        sampled: list = []  # the SampleInfo of a file too large to hold whole
+
         def work(progress, cancelled):
             where, found = (path, None) if find is None else find()
             if where is None:
                 return None, None, found
-            table = swio.read_table(where, options, progress=progress, cancelled=cancelled)
+            if show is None and large_file.too_large(where):
+                # Too large to hold whole (the command line's rule): a sample is shown,
+                # and every fit reads the whole file through DuckDB.
+                table, info = large_file.read_sample(where)
+                sampled.append(info)
+            else:
+                table = swio.read_table(where, options, progress=progress, cancelled=cancelled)
             # Histogram and summary of every number column, here rather than on the
             # interface thread the first time each column is selected.
             facts = column_facts(table, bins, cancelled)
@@ -575,13 +595,15 @@ class MainWindow(QMainWindow):
                 if not show(table, facts, found):
                     return
             else:
-                self.session.load_table(table, facts=facts)
+                self.session.load_table(table, facts=facts, sample=sampled[0] if sampled else None)
                 self.stack.clear()
                 self.stack.setClean()
             source = Path(table.source)
             self.add_recent(source)
             self._remember_dir(source)
-            if show is None:
+            if show is None and sampled:
+                self.notify(f"Opened {source.name}. {sampled[0].describe()}.", 20000)
+            elif show is None:
                 notes = list(getattr(table, "notes", []) or [])
                 self.notify(
                     f"Opened {source.name}: {len(table.data):,} rows"
@@ -758,6 +780,16 @@ class MainWindow(QMainWindow):
         job.ended.connect(loop.quit)
         if not job.done:
             loop.exec()
+
+    def open_sql_dialog(self):
+        """Copy as SQL (the same SELECT as ``scalewright sql``); None when not ready."""
+        if self.session.table is None or not self._ready_to_write("Nothing to copy: "):
+            return None
+        from .sql_dialog import SqlDialog
+
+        dialog = SqlDialog(projects.project_builder(self.session), self)
+        dialog.show()
+        return dialog
 
     def choose_and_export(self) -> None:
         if self.session.table is None or not self._ready_to_write("Nothing was exported: "):

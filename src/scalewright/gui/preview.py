@@ -33,7 +33,8 @@ class PreviewModel(QAbstractTableModel):
         super().__init__(parent)
         self.session = session
         self.show_scaled = False
-        self._columns: list[np.ndarray] = []
+        self._columns: list[np.ndarray | None] = []  # None: read by blocks (_cells)
+        self._cell_blocks: OrderedDict[tuple[int, int], np.ndarray] = OrderedDict()
         self._labels: list[str] = []
         self._numeric: list[bool] = []
         self._blocks: OrderedDict[tuple[str, int], np.ndarray] = OrderedDict()
@@ -47,7 +48,16 @@ class PreviewModel(QAbstractTableModel):
         data = self.session.data
         self._labels = self.session.labels
         # Plain numpy arrays per column: reading a cell is then one index, no pandas call.
-        self._columns = [data.iloc[:, i].to_numpy() for i in range(data.shape[1])]
+        # Columns held by numpy are read in place; the others (text in Arrow, nullable
+        # numbers) are turned into numpy a block of rows at a time, as the view shows them:
+        # a million texts made into Python strings at once took five times the memory of
+        # every number column together.
+        self._columns = []
+        for i in range(data.shape[1]):
+            series = data.iloc[:, i]
+            in_place = isinstance(series.dtype, np.dtype)
+            self._columns.append(series.to_numpy() if in_place else None)
+        self._cell_blocks.clear()
         self._numeric = [self.session.kind(lab) == "number" for lab in self._labels]
         self._blocks.clear()
         self.endResetModel()
@@ -91,6 +101,22 @@ class PreviewModel(QAbstractTableModel):
             self._blocks.move_to_end(key)
         return arr
 
+    def _cell(self, row: int, col: int):
+        column = self._columns[col]
+        if column is not None:
+            return column[row]
+        key = (col, row // BLOCK)
+        block = self._cell_blocks.get(key)
+        if block is None:
+            start = key[1] * BLOCK
+            block = self.session.data.iloc[start : start + BLOCK, col].to_numpy()
+            self._cell_blocks[key] = block
+            if len(self._cell_blocks) > MAX_BLOCKS:
+                self._cell_blocks.popitem(last=False)
+        else:
+            self._cell_blocks.move_to_end(key)
+        return block[row % BLOCK]
+
     def rowCount(self, parent=QModelIndex()) -> int:  # noqa: B008
         return 0 if parent.isValid() else self.session.n_rows
 
@@ -109,7 +135,7 @@ class PreviewModel(QAbstractTableModel):
                 if self.session.fit_error(label):
                     return ""
                 return format_scaled(float(self.scaled_block(label, row // BLOCK)[row % BLOCK]))
-            return format_cell(self._columns[col][row])
+            return format_cell(self._cell(row, col))
         if role == Qt.ItemDataRole.TextAlignmentRole:
             if self._numeric[col]:
                 return int(Qt.AlignmentFlag.AlignRight | Qt.AlignmentFlag.AlignVCenter)
@@ -188,7 +214,9 @@ class PreviewPanel(QWidget):
     def _on_table(self) -> None:
         n = self.session.n_rows
         cols = len(self.session.labels)
-        self.count.setText(f"{n:,} rows, {cols} columns" if self.session.table is not None else "")
+        sample = self.session.sample
+        rows = f"a sample of {n:,} rows of {sample.total_rows:,}" if sample else f"{n:,} rows"
+        self.count.setText(f"{rows}, {cols} columns" if self.session.table is not None else "")
 
     def _on_selection(self, labels: list[str]) -> None:
         if labels and labels[0] in self.session.labels:

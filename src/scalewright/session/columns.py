@@ -162,6 +162,14 @@ class ColumnReads:
             return None
         return self.fits.scaled_figures(label, outcome.column)
 
+    def scaled_figures_waiting(self, label: str) -> bool:
+        """True while the scaled figures are being made in the background (after the fit
+        landed); ``scaled_figures`` would make them at once."""
+        if self.fitting(label):
+            return False
+        outcome = self.outcome(label)
+        return isinstance(outcome, Fitted) and not self.fits.figures_ready(outcome.column)
+
     def scaled_values(self, label: str, rows: slice | np.ndarray | None = None) -> np.ndarray:
         """Scaled values of the column (or of some rows), with each row's group parameters
         (NaN while fitting or when the fit failed)."""

@@ -140,15 +140,12 @@ def _fit_in_background(
     label: str,
     mask: np.ndarray | None,
     groups: GroupKeys | None,
-) -> tuple[FitOutcome, Figures | None]:
-    """A fit and its scaled summary figures, from arrays only (safe in a worker thread)."""
+) -> FitOutcome:
+    """A fit, from arrays only (safe in a worker thread)."""
     try:
-        outcome = _fit(values, choice, label, mask, groups)
+        return _fit(values, choice, label, mask, groups)
     except Exception as err:  # shown as the column's problem, not lost in a thread
-        return FitFailed(f"column '{label}': the fit failed ({type(err).__name__}: {err})"), None
-    if isinstance(outcome, FitFailed) or not needs_values_for_figures(outcome.column):
-        return outcome, None
-    return outcome, figures_of(scale_with(values, outcome.column, groups))
+        return FitFailed(f"column '{label}': the fit failed ({type(err).__name__}: {err})")
 
 
 class FitStore:
@@ -158,8 +155,15 @@ class FitStore:
         self.fit_count = 0  # how many times a column was fitted (tests and benchmark)
         self.runner: Runner | None = None  # None (no window): every fit happens at once
         self.background_values = BACKGROUND_VALUES
+        # Set for a file too large to hold whole (a sample is loaded): every fit is made
+        # on the whole file by this call (label, choice, settings) -> (FittedColumn, rows
+        # fitted), in the background when a runner is attached.
+        self.whole_file_fit: Callable[..., tuple[FittedColumn, int]] | None = None
+        self.whole_file_rows: int | None = None
         # Called with the label when a background fit lands (on the interface thread).
         self.on_landed: Callable[[str, tuple], None] = lambda label, key: None
+        # Called with the label when scaled figures made in the background land.
+        self.on_figures: Callable[[str], None] = lambda label: None
         self._generation = 0
         self.reset(None, pd.DataFrame(), FitSettings())
 
@@ -173,6 +177,7 @@ class FitStore:
         self._pending: set[tuple[str, tuple]] = set()  # (label, choice key) being fitted
         self._generation += 1
         self._scaled_figures: dict[int, Figures] = {}
+        self._figures_pending: set[int] = set()  # id(fitted column) of figures on their way
         self._inputs_ready = False
         self._fit_mask: np.ndarray | None = None
         self._group_keys: GroupKeys | None = None
@@ -206,7 +211,9 @@ class FitStore:
         return self._fit_inputs()[1]
 
     def rows_fitted(self) -> int:
-        """How many rows the fit settings choose."""
+        """How many rows the fit settings choose (in the whole file, for a sample)."""
+        if self.whole_file_fit is not None and self.whole_file_rows is not None:
+            return self.whole_file_rows
         mask, _ = self._fit_inputs()
         return int(np.count_nonzero(mask)) if mask is not None else 0
 
@@ -225,6 +232,10 @@ class FitStore:
         mask, groups = self._fit_inputs()
         if self._settings_error is not None:
             result: FitOutcome = FitFailed(self._settings_error)
+        elif self.whole_file_fit is not None:
+            result = self._whole_file_outcome(label, choice, self.settings)
+            if isinstance(result, Fitted):
+                self.fit_count += 1
         else:
             assert self._figures is not None
             result = _fit(self._figures.values(label), choice, label, mask, groups)
@@ -232,6 +243,20 @@ class FitStore:
                 self.fit_count += 1
         per_label[key] = result
         return result
+
+    def _whole_file_outcome(
+        self, label: str, choice: ColumnChoice, settings: FitSettings
+    ) -> FitOutcome:
+        """The choice fitted on the whole file (safe in a worker thread)."""
+        assert self.whole_file_fit is not None
+        try:
+            fc, rows = self.whole_file_fit(label, choice, settings)
+        except ScalewrightError as err:
+            return FitFailed(str(err))
+        except Exception as err:  # shown as the column's problem, not lost in a thread
+            return FitFailed(f"column '{label}': the fit failed ({type(err).__name__}: {err})")
+        self.whole_file_rows = rows
+        return Fitted(fc)
 
     def start(self, label: str, choice: ColumnChoice) -> None:
         """Fit the choice now, or hand a slow fit of a large column to the runner."""
@@ -241,6 +266,15 @@ class FitStore:
         mask, groups = self._fit_inputs()
         slow = get_method(choice.method).slow_fit or groups is not None
         assert self._figures is not None
+        whole_file = self.whole_file_fit is not None and self._settings_error is None
+        if whole_file and self.runner is not None:  # every fit reads the whole file
+            settings, generation = self.settings, self._generation
+            self._pending.add((label, key))
+            self.runner(
+                lambda: self._whole_file_outcome(label, choice, settings),
+                lambda result: self._landed(label, key, generation, result),
+            )
+            return
         if (
             self.runner is None
             or not slow
@@ -262,15 +296,35 @@ class FitStore:
         if generation != self._generation:
             return  # the table or the fit settings changed meanwhile
         self._pending.discard((label, key))
-        outcome, figures = result
+        outcome = result
         per_label = self._fits.setdefault(label, {})
         if key not in per_label:  # not fitted meanwhile by outcome()
             per_label[key] = outcome
             if isinstance(outcome, Fitted):
                 self.fit_count += 1
-                if figures is not None:
-                    self._scaled_figures[id(outcome.column)] = figures
+                self._figures_in_background(label, outcome.column)
         self.on_landed(label, key)
+
+    def _figures_in_background(self, label: str, fc: FittedColumn) -> None:
+        """Scaled figures that need every scaled value are made after the fit has landed,
+        so that the scaled bars (which need only the fit) are drawn first."""
+        if self.runner is None or not needs_values_for_figures(fc):
+            return
+        assert self._figures is not None
+        values, groups, generation = self._figures.values(label), self.group_keys, self._generation
+        self._figures_pending.add(id(fc))
+
+        def deliver(figures: Figures) -> None:
+            self._figures_pending.discard(id(fc))
+            if generation == self._generation and id(fc) not in self._scaled_figures:
+                self._scaled_figures[id(fc)] = figures
+                self.on_figures(label)
+
+        self.runner(lambda: figures_of(scale_with(values, fc, groups)), deliver)
+
+    def figures_ready(self, fc: FittedColumn) -> bool:
+        """False while the column's scaled figures are being made in the background."""
+        return id(fc) in self._scaled_figures or id(fc) not in self._figures_pending
 
     def fitting(self, label: str, choice: ColumnChoice) -> bool:
         """True while this choice of the column is being fitted in the background."""

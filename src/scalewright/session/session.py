@@ -41,6 +41,7 @@ class Session(ColumnReads):
     table_loaded = Signal()
     choices_changed = Signal(list)  # labels whose choice changed
     fitted = Signal(str)  # label refitted (or its fit failed)
+    scaled_figures_ready = Signal(str)  # label's scaled figures, made in the background
     settings_changed = Signal()
     selection_changed = Signal(list)
     dirty_changed = Signal(bool)
@@ -49,6 +50,9 @@ class Session(ColumnReads):
     def __init__(self, bins: int = BINS) -> None:
         self.bins = bins
         self.table: Any | None = None  # scalewright.io.Table
+        self._labels_of: Any = None  # the columns index _label_positions was made from
+        self.sample: Any = None  # large_file.SampleInfo when the table is a file's sample
+        self._label_positions: dict[str, int] = {}
         self._choices: dict[str, ColumnChoice] = {}
         self._selection: list[str] = []
         self._project_path: Path | None = None
@@ -58,6 +62,7 @@ class Session(ColumnReads):
         self.column_figures = ColumnFigures(pd.DataFrame(), bins)
         self.fits = FitStore()
         self.fits.on_landed = self._fit_landed
+        self.fits.on_figures = self.scaled_figures_ready.emit
 
     # ------------------------------------------------------------------ table
 
@@ -69,7 +74,18 @@ class Session(ColumnReads):
 
     @property
     def labels(self) -> list[str]:
-        return [str(c) for c in self.data.columns]
+        return list(self._label_index())
+
+    def _label_index(self) -> dict[str, int]:
+        """label -> position, made once per columns index (the column list asks for every
+        row's header on each repaint; listing an Arrow-backed index each time was slow)."""
+        columns = self.data.columns
+        if self._labels_of is not columns:
+            self._labels_of = columns
+            self._label_positions = {}
+            for i, c in enumerate(columns):
+                self._label_positions.setdefault(str(c), i)
+        return self._label_positions
 
     @property
     def n_rows(self) -> int:
@@ -80,8 +96,8 @@ class Session(ColumnReads):
         if self.table is None:
             return label
         try:
-            return str(self.table.headers[self.labels.index(label)])
-        except (ValueError, IndexError):
+            return str(self.table.headers[self._label_index()[label]])
+        except (KeyError, IndexError):
             return label
 
     def kind(self, label: str) -> str:
@@ -116,8 +132,12 @@ class Session(ColumnReads):
         fitted: Mapping[str, FittedColumn] | None = None,
         fitted_on: Mapping[str, FittedOn] | None = None,
         facts: Mapping[str, ColumnFacts] | None = None,
+        sample: Any = None,
     ) -> None:
         """Show a newly read table, optionally with a project's choices, in one update.
+
+        ``sample`` (a ``large_file.SampleInfo``) says the table is a sample of a file too
+        large to hold whole: every fit is then made on the whole file.
 
         Listeners hear ``table_loaded`` once (not one event per column). Choices for
         columns that are not in the table are dropped; invalid ones raise before anything
@@ -137,6 +157,9 @@ class Session(ColumnReads):
         self._choices = {lab: new_choices.get(lab, ColumnChoice()) for lab in labels}
         self._project_path = Path(project_path) if project_path else None
         self._selection = []
+        self.sample = sample
+        self.fits.whole_file_fit = None if sample is None else sample.fit_with_rows
+        self.fits.whole_file_rows = None
         self.column_figures = ColumnFigures(table.data, self.bins, facts)
         self.fits.reset(self.column_figures, table.data, settings or FitSettings())
         self._kept = {}
