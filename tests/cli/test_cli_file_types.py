@@ -15,6 +15,7 @@ def test_fit_on_a_readme_says_the_type_is_not_supported(tmp_path, capsys):
     assert err.splitlines() == [
         f"scalewright: {readme}: this type of file ('.md', a Markdown text) is not supported; "
         "Scalewright opens tables: CSV (.csv), TSV (.tsv), delimited text (.txt), "
-        "Workbook (.xlsx, .xlsm), older workbook (.xls) and OpenDocument spreadsheet (.ods)"
+        "Workbook (.xlsx, .xlsm), older workbook (.xls), OpenDocument spreadsheet (.ods) "
+        "and Parquet (.parquet)"
     ]
     assert not (tmp_path / "p.swproj").exists()
