@@ -406,11 +406,6 @@ def _param_sets_by_row(
         (fc.groups[names[i]], rows) for i, rows in rows_by_code(row_sets).items()
     ]
     pooled_rows = row_sets < 0
-    if report.unseen_groups:
-        report.warnings.append(
-            "groups not seen when fitting used the parameters fitted on all groups: "
-            + ", ".join(f"'{k}'" for k in report.unseen_groups)
-        )
     if pooled_rows.any():
         out.append((fc.pooled, pooled_rows))
     return out
@@ -482,27 +477,36 @@ def _run(
                 result[np.isinf(result) & np.isfinite(x)] = np.nan
                 n_undefined += n_overflow
         report.n_undefined = n_undefined
-        if report.n_undefined:
-            what = "original units" if restoring else "scaled units"
-            report.warnings.append(
-                f"{report.n_undefined} values have no value in {what} for {fc.method} "
-                "with these parameters (out of its domain or beyond the range of "
-                "floating-point numbers) and were left blank"
-            )
-        if report.n_infinite:
-            report.warnings.append(
-                f"{report.n_infinite} infinite values were passed through unchanged"
-            )
-        if report.n_outside and not clip:
-            report.warnings.append(
-                f"{report.n_below} values below and {report.n_above} above the fitted range "
-                f"[{number_text(fc.pooled.min, 'r')}, {number_text(fc.pooled.max, 'r')}]"
-                if not fc.groups
-                else f"{report.n_below} values below and {report.n_above} above their group's fitted range"
-            )
+        report_warnings(report, fc, restoring=restoring, clip=clip)
         new_columns[target] = result
         reports.append(report)
     return _with_columns(data, new_columns), reports
+
+
+def report_warnings(report: ColumnReport, fc: FittedColumn, *, restoring: bool, clip: bool) -> None:
+    """The warnings a column's counts call for, in one wording for every way of applying
+    (in memory here, out of core through DuckDB)."""
+    if report.unseen_groups:
+        report.warnings.append(
+            "groups not seen when fitting used the parameters fitted on all groups: "
+            + ", ".join(f"'{k}'" for k in report.unseen_groups)
+        )
+    if report.n_undefined:
+        what = "original units" if restoring else "scaled units"
+        report.warnings.append(
+            f"{report.n_undefined} values have no value in {what} for {fc.method} "
+            "with these parameters (out of its domain or beyond the range of "
+            "floating-point numbers) and were left blank"
+        )
+    if report.n_infinite:
+        report.warnings.append(f"{report.n_infinite} infinite values were passed through unchanged")
+    if report.n_outside and not clip:
+        report.warnings.append(
+            f"{report.n_below} values below and {report.n_above} above the fitted range "
+            f"[{number_text(fc.pooled.min, 'r')}, {number_text(fc.pooled.max, 'r')}]"
+            if not fc.groups
+            else f"{report.n_below} values below and {report.n_above} above their group's fitted range"
+        )
 
 
 def _with_columns(data: pd.DataFrame, new_columns: Mapping[str, np.ndarray]) -> pd.DataFrame:

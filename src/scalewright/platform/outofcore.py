@@ -27,6 +27,7 @@ from sqlglot import exp
 
 from ..engine import ColumnReport, FitSettings, FittedPlan, get_method
 from ..engine import sql_terms as S
+from ..engine.plan import report_warnings
 from ..errors import ColumnError, ReadError, ScalewrightError, WriteError
 from ..io import ColumnKind, ReadOptions, atomic_path, detect
 from ..io.kinds import MISSING_MARKERS
@@ -394,7 +395,7 @@ def count_reports(
                 report.n_clipped = report.n_below + report.n_above
         if group and fc.groups:
             report.unseen_groups = [k for k in dict.fromkeys(seen_keys) if k and k not in fc.groups]
-        _warn(report, fc, restoring, clip)
+        report_warnings(report, fc, restoring=restoring, clip=clip)
         reports.append(report)
     return reports
 
@@ -420,31 +421,6 @@ def _range_expr(fc, group):
         default=S.num(fc.pooled.max),
     )
     return lo, hi
-
-
-def _warn(report: ColumnReport, fc, restoring: bool, clip: bool) -> None:
-    """The warnings the in-memory ``engine.plan._run`` gives, from the counts."""
-    if report.unseen_groups:
-        report.warnings.append(
-            "groups not seen when fitting used the parameters fitted on all groups: "
-            + ", ".join(f"'{k}'" for k in report.unseen_groups)
-        )
-    if report.n_undefined:
-        what = "original units" if restoring else "scaled units"
-        report.warnings.append(
-            f"{report.n_undefined} values have no value in {what} for {fc.method} "
-            "with these parameters (out of its domain or beyond the range of "
-            "floating-point numbers) and were left blank"
-        )
-    if report.n_infinite:
-        report.warnings.append(f"{report.n_infinite} infinite values were passed through unchanged")
-    if report.n_outside and not clip:
-        report.warnings.append(
-            f"{report.n_below} values below and {report.n_above} above the fitted range "
-            f"[{fc.pooled.min!r}, {fc.pooled.max!r}]"
-            if not fc.groups
-            else f"{report.n_below} values below and {report.n_above} above their group's fitted range"
-        )
 
 
 def apply_source(
