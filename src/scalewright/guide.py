@@ -91,9 +91,30 @@ def method_section(method: Method, level: int = 3) -> str:
     return "\n".join(lines)
 
 
+def _and_list(words: list[str]) -> str:
+    return words[0] if len(words) == 1 else ", ".join(words[:-1]) + " and " + words[-1]
+
+
+def methods_table() -> str:
+    """One row a method: its name, its command-line id, what it does and what the project
+    keeps, as a Markdown table (the guide's overview)."""
+    rows = [
+        "| method | on the command line | what it does | shape | kept in the project |",
+        "|---|---|---|---|---|",
+    ]
+    for method in METHODS.values():
+        shape = "changed" if method.changes_shape else "kept"
+        kept = ", ".join(f"`{p.name}`" for p in method.param_specs) or "nothing"
+        summary = method.summary.replace("|", "\\|")
+        rows.append(f"| {method.name} | `{method.id}` | {summary} | {shape} | {kept} |")
+    return "\n".join(rows)
+
+
 def guide_markdown(level: int = 3) -> str:
     """The whole method guide: the cautions, then every method in the registry's order.
     ``level`` is the heading level of each method (3 under the README's ``##``)."""
+    shaped = [m.name for m in METHODS.values() if m.changes_shape]
+    straight = [m.name for m in METHODS.values() if m.linear and m.param_specs]
     parts = [
         "Every method is fitted on some rows of a column (its parameters are learned from "
         "them), kept in the project file, and used unchanged on every row and on every "
@@ -102,12 +123,13 @@ def guide_markdown(level: int = 3) -> str:
         "",
         f"1. {CAUTION_FIT_ON_TRAINING}",
         f"2. {CAUTION_CLIPPING}",
-        "3. Box-Cox, Yeo-Johnson and quantile change the shape of the distribution on "
-        "purpose; the straight-line methods (min-max, z-score, decimal scaling, robust, "
-        "max-abs) only move and stretch it.",
+        f"3. {_and_list(shaped)} change the shape of the distribution on purpose; the "
+        f"straight-line methods ({', '.join(straight)}) only move and stretch it.",
         f"4. {CAUTION_KEEP_PROJECT}",
         "",
         "Missing values are left out of the fit and stay missing.",
+        "",
+        methods_table(),
     ]
     for method in METHODS.values():
         parts += ["", method_section(method, level)]

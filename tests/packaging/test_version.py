@@ -184,3 +184,19 @@ def test_a_library_without_metadata_is_listed_from_the_fallback_table(monkeypatc
     monkeypatch.setattr(about.metadata, "distribution", without_pandas)
     pandas = next(lib for lib in about.bundled_libraries() if lib.name == "pandas")
     assert pandas == about.Library("pandas", "unknown", "BSD-3-Clause")
+
+
+def test_every_package_folder_is_declared_for_installing():
+    """pyproject.toml lists the packages by hand (resources/ is mapped in from outside
+    src/), so a new package folder must be added there, or an ordinary ``pip install .``
+    leaves it out while the editable install used in development still finds it. The
+    report and session packages were missing until this test."""
+    declared = set(PYPROJECT["tool"]["setuptools"]["packages"])
+    source = REPO_ROOT / "src"
+    folders = {
+        ".".join(init.parent.relative_to(source).parts)
+        for init in source.rglob("__init__.py")
+        if "__pycache__" not in init.parts
+    }
+    assert folders - declared == set(), "package folders missing from pyproject.toml"
+    assert declared - folders == {"scalewright.resources"}

@@ -456,6 +456,7 @@ class Logarithm(Method):
     name = "logarithm"
     summary = "Takes the logarithm of each value (after adding a shift if needed)."
     when_to_use = "For positive values spread over several orders of magnitude."
+    changes_shape = True
     option_specs = (
         OptionSpec(
             "base",
