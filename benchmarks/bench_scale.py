@@ -1,6 +1,6 @@
 """Speed and memory at scale, in one run (a script, not a test).
 
-    python benchmarks/bench_scale.py [--rows 300000] [--cols 20] [--repeat 3]
+    python benchmarks/bench_scale.py [--rows 300000] [--cols 20] [--repeat 5]
                                      [--big-rows 20000000] [--big-cols 10] [--skip-big]
 
 (a) The command line fitting z-score on a ROWS x COLS CSV and writing the scaled CSV,
@@ -199,7 +199,7 @@ def main() -> None:
     parser = argparse.ArgumentParser(description=__doc__.split("\n\n")[0])
     parser.add_argument("--rows", type=int, default=300_000)
     parser.add_argument("--cols", type=int, default=20)
-    parser.add_argument("--repeat", type=int, default=3)
+    parser.add_argument("--repeat", type=int, default=5)
     parser.add_argument("--big-rows", type=int, default=20_000_000)
     parser.add_argument("--big-cols", type=int, default=10)
     parser.add_argument("--skip-big", action="store_true")

@@ -20,11 +20,18 @@ from typing import NamedTuple
 import numpy as np
 import pandas as pd
 import pyarrow as pa
+import pyarrow.compute as pc
 import pyarrow.csv as pacsv
 
 from ..errors import Cancelled, ReadError
 from . import detect as det
-from .kinds import arrow_to_numpy, classify_arrow, decimal_comma_note, text_series
+from .kinds import (
+    MAX_NUMBER_DIGITS,
+    arrow_to_numpy,
+    classify_arrow,
+    decimal_comma_note,
+    text_series,
+)
 from .labels import unique_labels
 from .options import CancelCheck, ColumnKind, Progress, ReadOptions, Table
 from .table import RawTable, build_table
@@ -159,13 +166,13 @@ def _read_streamed(
     found = _find_header(path, options, data, why)
     if found.offset is None or found.offset + 2 * det.SAMPLE_BYTES > len(data):
         return None  # the header is too far down for a full sample after it
-    head = _examine(path, options, data, found, None)
-    if len(head.scan.starts) < 3:
-        return None  # rows too long for the stretch to hold a sample
     if data.find(b'"', found.offset) < 0:
         # Whether a quote comes further down decides how pyarrow splits the rows, and a
         # file without quotes splits faster, so such a file is read whole to find out.
         return None
+    head = _examine(path, options, data, found, None)
+    if len(head.scan.starts) < 3:
+        return None  # rows too long for the stretch to hold a sample
     if progress is not None:
         progress(0.1)
     _check_cancelled(cancelled)
@@ -591,7 +598,7 @@ _FAILED_COLUMN = re.compile(r"In CSV column #(\d+):.*CSV conversion error to dou
 
 def _float_columns(sample, layout: TextLayout) -> set[int]:
     """Columns whose sample rows read, by the rules of ``kinds``, as float64 numbers that
-    a direct number parse gives identically (see ``_direct_numbers_hold``)."""
+    a direct number parse gives identically (see ``_rows_to_check``)."""
     try:
         table = _parse_body(sample, layout)
     except pa.ArrowInvalid:
@@ -602,18 +609,28 @@ def _float_columns(sample, layout: TextLayout) -> set[int]:
         series, kind, notes = classify_arrow(table.column(i), "c", layout.decimal, layout.thousands)
         if kind is not ColumnKind.NUMBER or series.dtype != np.float64 or notes != comma_note:
             continue
-        if _direct_numbers_hold(series.to_numpy(), series.isna().sum()):
+        # The text rules read these very cells, so whole numbers among them need no look.
+        if _rows_to_check(series.to_numpy(), int(series.isna().sum())) is not None:
             found.add(i)
     return found
 
 
-def _direct_numbers_hold(x: np.ndarray, nulls: int) -> bool:
-    """Numbers read straight from the file match the text rules when none is a whole number
-    and all are finite (else "nan"/"inf" words, leading-zero or long digit codes and
-    whole-number columns could hide behind them). Those columns are read as text."""
+def _rows_to_check(x: np.ndarray, nulls: int) -> np.ndarray | None:
+    """The rows whose text decides whether numbers read straight from the file are what
+    the text rules (``kinds``) give: None when only the whole column's text can tell.
+
+    That is so when a value is not finite ("nan" and "inf" words could hide behind it) or
+    every value is a whole number (counts and codes are told apart by their text). In a
+    column with decimals, a whole number stays a number, leading zeros and all ("007" is 7),
+    unless it has more than ``MAX_NUMBER_DIGITS`` digits, which can make the column text;
+    so only the rows with whole numbers need a look, and none when there are none.
+    """
     if int(np.count_nonzero(~np.isfinite(x))) != nulls:
-        return False
-    return not np.any(x == np.floor(x))
+        return None
+    whole = np.flatnonzero(x == np.floor(x))  # never a missing value: NaN equals nothing
+    if len(whole) == len(x) - nulls:
+        return None
+    return whole
 
 
 def _read_body(path, rest, layout: TextLayout, scan: Scan, floats) -> pa.Table:
@@ -631,22 +648,79 @@ def _read_body(path, rest, layout: TextLayout, scan: Scan, floats) -> pa.Table:
                 break  # not a number problem: the text read below names it
             floats.discard(int(failed.group(1)))
             continue
-        doubtful = [
-            i
-            for i in sorted(floats)
-            if not _direct_numbers_hold(arrow_to_numpy(table.column(i)), table.column(i).null_count)
-        ]
-        if doubtful:
-            text = _parse_body(rest, layout, only=doubtful)
-            for i in doubtful:
-                table = table.set_column(i, str(i), text.column(str(i)))
-        return table
+        return _settle_doubts(rest, layout, table, floats)
     try:
         return _parse_body(rest, layout)
     except pa.ArrowInvalid as err:
         if isinstance(rest, _FileTail):
             raise  # the whole file is read into memory to name the row
         return _after_parse_error(path, rest, err, layout, scan)
+
+
+def _settle_doubts(rest, layout: TextLayout, table: pa.Table, floats: set[int]) -> pa.Table:
+    """``table`` with each number column the text rules would read otherwise replaced by
+    its text (``_rows_to_check``). Whole numbers in a column of decimals are looked at
+    only if the file holds a long enough run of digits anywhere, which is rare."""
+    as_text, to_check = [], {}
+    for i in sorted(floats):
+        column = table.column(i)
+        rows = _rows_to_check(arrow_to_numpy(column), column.null_count)
+        if rows is None:
+            as_text.append(i)
+        elif len(rows):
+            to_check[i] = rows
+    if to_check and not _may_hold_long_digit_string(rest):
+        to_check = {}
+    if not as_text and not to_check:
+        return table
+    text = _parse_body(rest, layout, only=sorted([*as_text, *to_check]))
+    for i in sorted(floats):
+        if i in as_text or (i in to_check and _long_digit_string(text.column(str(i)), to_check[i])):
+            table = table.set_column(i, str(i), text.column(str(i)))
+    return table
+
+
+def _long_digit_string(cells: pa.ChunkedArray, rows: np.ndarray) -> bool:
+    """Some of these cells has more than ``MAX_NUMBER_DIGITS`` digits. A whole number
+    that long is a code to the text rules when written as digits alone, and may be one
+    with a sign; the column then goes through those rules, which decide."""
+    digits = pc.count_substring_regex(cells.take(pa.array(rows)), "[0-9]")
+    return bool(pc.any(pc.greater(digits, MAX_NUMBER_DIGITS)).as_py())
+
+
+# Bytes looked at per step when searching the rows for a long run of digits.
+_DIGIT_SCAN_BLOCK = 1 << 18  # small blocks stay in the cache: 7 ms for 50 MB, 30 with 4 MiB
+_EIGHT_DIGITS = np.uint64(0x0101010101010101)
+
+
+def _may_hold_long_digit_string(rest) -> bool:
+    """Whether the rows hold a run of more than ``MAX_NUMBER_DIGITS`` ASCII digits.
+
+    Any run of 15 or more digits holds an aligned block of eight, so eight bytes are tested
+    at once. A yes may come from the long fraction of a decimal number; the cells
+    themselves are then looked at (``_long_digit_string``)."""
+    if isinstance(rest, _FileTail):
+        with open(rest.path, "rb") as fh:
+            fh.seek(rest.start)
+            carry = b""
+            while block := fh.read(_DIGIT_SCAN_BLOCK):
+                if _eight_digit_block(carry + block):
+                    return True
+                carry = block[-16:]  # a run across the two blocks is whole in the next
+        return False
+    data = np.frombuffer(rest, dtype=np.uint8)
+    return any(
+        _eight_digit_block(data[start : start + _DIGIT_SCAN_BLOCK + 16])
+        for start in range(0, len(data), _DIGIT_SCAN_BLOCK)
+    )
+
+
+def _eight_digit_block(data) -> bool:
+    """Some aligned block of eight bytes of ``data`` is all ASCII digits."""
+    b = np.frombuffer(data, dtype=np.uint8) if isinstance(data, bytes) else data
+    usable = len(b) // 8 * 8
+    digits = (b[:usable] - ord("0")) < 10
+    return bool(np.any(digits.view(np.uint64) == _EIGHT_DIGITS))
 
 
 def _after_parse_error(path, rest, err, layout: TextLayout, head_scan: Scan) -> pa.Table:
@@ -678,9 +752,11 @@ def _skip_blank_row(row) -> str:
 
 
 def _classify_read(column: pa.ChunkedArray, label: str, decimal: str, thousands: str):
-    """A text-file column: numbers read directly are final (``_direct_numbers_hold``
+    """A text-file column: numbers read directly are final (``_settle_doubts``
     checked them), text goes through the rules of ``kinds``."""
     if pa.types.is_floating(column.type):
         notes = [decimal_comma_note(label)] if decimal == "," else []
-        return pd.Series(arrow_to_numpy(column)), ColumnKind.NUMBER, notes
+        values = arrow_to_numpy(column)
+        # A column of several chunks arrives as a new array: no need to copy it again.
+        return pd.Series(values, copy=not values.flags.writeable), ColumnKind.NUMBER, notes
     return classify_arrow(column, label, decimal, thousands)
