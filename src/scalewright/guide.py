@@ -95,6 +95,10 @@ def _and_list(words: list[str]) -> str:
     return words[0] if len(words) == 1 else ", ".join(words[:-1]) + " and " + words[-1]
 
 
+def _capitalized(text: str) -> str:
+    return text[:1].upper() + text[1:]
+
+
 def methods_table() -> str:
     """One row a method: its name, its command-line id, what it does and what the project
     keeps, as a Markdown table (the guide's overview)."""
@@ -123,7 +127,7 @@ def guide_markdown(level: int = 3) -> str:
         "",
         f"1. {CAUTION_FIT_ON_TRAINING}",
         f"2. {CAUTION_CLIPPING}",
-        f"3. {_and_list(shaped)} change the shape of the distribution on purpose; the "
+        f"3. {_capitalized(_and_list(shaped))} change the shape of the distribution on purpose; the "
         f"straight-line methods ({', '.join(straight)}) only move and stretch it.",
         f"4. {CAUTION_KEEP_PROJECT}",
         "",

@@ -60,6 +60,9 @@ def test_parameter_words_show_a_zero_parameter_without_a_sign():
     assert get_method("minmax").describe_params(mm) == (
         "smallest -3.25, largest 4, smallest becomes -1, largest becomes 1"
     )
+    # The shift reads as a phrase, not as "added first 0" (found by a new user's eye).
+    log = {"base": "e", "shift": -0.0}
+    assert get_method("log").describe_params(log) == "logarithm base e, shift 0 added first"
 
 
 def test_the_window_figures_use_the_ascii_minus_and_no_negative_zero():

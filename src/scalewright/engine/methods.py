@@ -23,6 +23,7 @@ from .method_base import (
     ParamSpec,
     Steps,
     finite_range,
+    format_number,
     largest_size,
     near,
 )
@@ -469,7 +470,12 @@ class Logarithm(Method):
     )
     param_specs = (
         ParamSpec("base", "text", "logarithm base", brief=False),
-        ParamSpec("shift", "number", "added first"),
+        ParamSpec(
+            "shift",
+            "number",
+            "shift added first",
+            says=lambda v: f"shift {format_number(v)} added first",
+        ),
     )
     assumes = (
         "Values above 0 (or a shift that lifts them above 0) whose ratios matter more "
