@@ -150,6 +150,8 @@ def test_described_in_words_with_the_option_labels():
     m = get_method("quantile")
     fc = fitted(np.array([1.0, 2.0, 4.0]))
     assert m.describe_params(fc.pooled.params, brief=True) == ("3 fitted quantiles from 1 to 4")
+    many = {"shape": "uniform", "quantiles": list(np.linspace(5.67, 7.31, 1000))}
+    assert m.describe_params(many, brief=True) == "1,000 fitted quantiles from 5.67 to 7.31"
     spec = m.option_specs[0]
     assert (
         spec.shown_label == "Result shape" and spec.choice_words("normal") == "bell curve (normal)"

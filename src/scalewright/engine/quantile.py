@@ -30,7 +30,7 @@ def _ranks(n: int) -> np.ndarray:
 
 
 def _quantile_words(q: list[float]) -> str:
-    return f"{len(q)} fitted quantiles from {format_number(q[0])} to {format_number(q[-1])}"
+    return f"{len(q):,} fitted quantiles from {format_number(q[0])} to {format_number(q[-1])}"
 
 
 class Quantile(Method):
