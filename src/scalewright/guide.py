@@ -67,6 +67,14 @@ def _options_words(method: Method) -> list[str]:
     return words
 
 
+def _param_words(spec) -> str:
+    """A kept parameter in the guide: its name in the project, then what it is."""
+    notes = [spec.label] if spec.label != spec.name else []
+    if spec.absent_when:
+        notes.append("not kept when " + spec.absent_when)
+    return f"`{spec.name}`" + (f" ({'; '.join(notes)})" if notes else "")
+
+
 def method_section(method: Method, level: int = 3) -> str:
     """One method's part of the guide."""
     lines = [f"{'#' * level} {method.name} (`{method.id}`)", ""]
@@ -76,10 +84,7 @@ def method_section(method: Method, level: int = 3) -> str:
     lines.append(f"- **When to use it:** {method.when_to_use}")
     lines.append(f"- **What it assumes:** {method.assumes}")
     lines.append(f"- **How it reverses:** {method.reverses} By hand: `{method.inverse_formula}`")
-    params = ", ".join(
-        f"`{p.name}` ({p.label}{'; not kept when ' + p.absent_when if p.absent_when else ''})"
-        for p in method.param_specs
-    )
+    params = ", ".join(_param_words(p) for p in method.param_specs)
     if params:
         lines.append(f"- **Kept in the project:** {params}")
     options = _options_words(method)

@@ -60,9 +60,9 @@ def test_parameter_words_show_a_zero_parameter_without_a_sign():
     assert get_method("minmax").describe_params(mm) == (
         "smallest -3.25, largest 4, smallest becomes -1, largest becomes 1"
     )
-    # The shift reads as a phrase, not as "added first 0" (found by a new user's eye).
+    # Not "added first 0", as it read before a new user's eye fell on it.
     log = {"base": "e", "shift": -0.0}
-    assert get_method("log").describe_params(log) == "logarithm base e, shift 0 added first"
+    assert get_method("log").describe_params(log) == "logarithm base e, shift 0"
 
 
 def test_the_window_figures_use_the_ascii_minus_and_no_negative_zero():
@@ -72,3 +72,16 @@ def test_the_window_figures_use_the_ascii_minus_and_no_negative_zero():
     assert fmt(-2.5) == "-2.5"
     assert fmt(-1234.0) == "-1,234"
     assert fmt(float("-inf")) == "-∞"
+
+
+def test_no_method_word_uses_another_minus_sign():
+    """Every label, summary and guide text of every method uses the ASCII minus, as the
+    numbers do (issue 8, item 8); the robust spread's label had the Unicode one."""
+    from scalewright import guide
+    from scalewright.engine import METHODS
+
+    words = [guide.guide_markdown()]
+    for method in METHODS.values():
+        words += [spec.label for spec in method.param_specs]
+        words += [spec.shown_label for spec in method.option_specs]
+    assert not [w for w in words if "\u2212" in w]

@@ -23,7 +23,6 @@ from .method_base import (
     ParamSpec,
     Steps,
     finite_range,
-    format_number,
     largest_size,
     near,
 )
@@ -332,7 +331,7 @@ class Robust(LinearMethod):
         ParamSpec("median", "number", "median"),
         ParamSpec("q1", "number", "first quartile"),
         ParamSpec("q3", "number", "third quartile"),
-        ParamSpec("scale", "number", "spread (third \u2212 first quartile)"),
+        ParamSpec("scale", "number", "spread (third quartile minus first)"),
         ParamSpec("quantile_rule", "text", "quartiles by", brief=False),
     )
     assumes = (
@@ -470,12 +469,7 @@ class Logarithm(Method):
     )
     param_specs = (
         ParamSpec("base", "text", "logarithm base", brief=False),
-        ParamSpec(
-            "shift",
-            "number",
-            "shift added first",
-            says=lambda v: f"shift {format_number(v)} added first",
-        ),
+        ParamSpec("shift", "number", "shift"),  # the summary says it is added first
     )
     assumes = (
         "Values above 0 (or a shift that lifts them above 0) whose ratios matter more "
