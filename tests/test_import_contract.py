@@ -1,7 +1,7 @@
 """The layers below the window never need Qt (../shared/DESIGN.md, "Layers").
 
-``engine``, ``io``, ``project``, ``projects``, ``tasks``, ``cli`` and the window's Qt-free
-state (``session``) must import on a machine with no display and without PySide6: checked
+``engine``, ``io``, ``project``, ``platform``, ``projects``, ``tasks``, ``cli``, the method
+guide and the window's Qt-free state (``session``) must import on a machine with no display and without PySide6: checked
 in a fresh interpreter where importing PySide6, shiboken6 or pyqtgraph raises ImportError,
 and by reading every import statement of their source.
 """
@@ -18,7 +18,8 @@ import pytest
 
 SRC = Path(__file__).resolve().parents[1] / "src" / "scalewright"
 # Packages and modules below the window (paths relative to SRC).
-QT_FREE = ["engine", "io", "session", "project", "projects.py", "tasks.py", "cli.py"]
+QT_FREE = ["engine", "io", "session", "project", "platform", "projects.py", "tasks.py", "cli.py"]
+QT_FREE += ["guide.py", "errors.py"]
 # The report's HTML face (its PDF face, report/pdf.py, imports Qt when a PDF is asked for).
 QT_FREE += ["report/__init__.py", "report/content.py", "report/formulas.py", "report/html.py"]
 QT_FREE += ["report/svg.py"]
