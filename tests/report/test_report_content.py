@@ -96,6 +96,9 @@ def test_every_fitted_column_with_the_projects_exact_parameters(every_method):
     assert facts["Data file SHA-256"].startswith(project.source_sha256)
     assert facts["Data file size"].startswith(f"{project.source_size:,} bytes")
     assert facts["Fitted on"] == "1,945 rows: the rows where split is train"
+    assert facts["Read with"] == (  # the import settings' words, not key='value'
+        "encoding UTF-8, columns separated by comma, decimal point, column names on row 1"
+    )
     assert facts["Data file now"].startswith("found, unchanged")
     assert facts["Project file"] == str(path)
     for what in ("Project saved", "Project created", "Report made"):
