@@ -904,6 +904,7 @@ def _table(rows: list[list[str]]) -> list[str]:
 def show_lines(project, project_path: Path | None, *, header: bool = True) -> list[str]:
     """The project as plain lines: where it came from, then one row per fitted column."""
     from .engine import get_method
+    from .io.detect import describe_read_options
     from .project import locate_source, options_text
 
     lines: list[str] = []
@@ -920,9 +921,8 @@ def show_lines(project, project_path: Path | None, *, header: bool = True) -> li
                     lines.append(f"             found beside the project: {check.path}")
                 if check.changed:
                     lines.append("             changed since the parameters were fitted")
-        read = project.read_options.to_dict()
-        shown = ", ".join(f"{k}={v!r}" for k, v in read.items() if v not in (None, ""))
-        lines.append(f"read with:   {shown or 'detected settings'}")
+        shown = describe_read_options(project.read_options) or "detected settings"
+        lines.append(f"read with:   {shown}")
         rows_line = f"{plan.n_rows:,} rows" if plan is not None else "not fitted yet"
         if settings.fit_where is not None:
             rows_line += f" where {settings.fit_where[0]} is {settings.fit_where[1]}"

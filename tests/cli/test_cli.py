@@ -122,6 +122,9 @@ def test_fit_apply_restore_show_scenario(season):
     lines = show.stdout.splitlines()
     assert lines[0] == f"data file:   {(season / 'harvest_2025.csv').resolve()}"
     assert f"fitted on:   {rows:,} rows where split is train" in lines
+    # The report's words for the read settings (io.detect.describe_read_options).
+    read = "encoding UTF-8, columns separated by comma, decimal point, column names on row 1"
+    assert f"read with:   {read}" in lines
     yield_line = next(line for line in lines if line.startswith("yield_kg "))
     assert yield_line.split()[:3] == ["yield_kg", "z-score", "sd=sample"]
     assert f"mean {np.mean(train):.10g}, sd {np.std(train, ddof=1):.10g}" in yield_line

@@ -198,3 +198,26 @@ def detect_marks(cells: list[str], delimiter: str) -> tuple[str, str]:
 
 def describe_delimiter(d: str) -> str:
     return {",": "comma", ";": "semicolon", "\t": "tab", "|": "vertical bar"}.get(d, repr(d))
+
+
+_MARK_WORDS = {".": "point", ",": "comma", " ": "space", "'": "apostrophe"}
+
+
+def describe_read_options(options) -> str:
+    """A file's read settings (``ReadOptions``) in the import settings' words, for the
+    report and ``scalewright show``; "" when every setting is left to detection."""
+    words = []
+    if options.encoding:
+        words.append(f"encoding {options.encoding.upper()}")
+    if options.delimiter:
+        words.append(f"columns separated by {describe_delimiter(options.delimiter)}")
+    if options.decimal:
+        words.append(f"decimal {_MARK_WORDS.get(options.decimal, repr(options.decimal))}")
+    if options.thousands:
+        mark = _MARK_WORDS.get(options.thousands, repr(options.thousands))
+        words.append(f"thousands separated by {mark}")
+    if options.header_row is not None:
+        words.append(f"column names on row {options.header_row + 1}")
+    if options.sheet:
+        words.append(f"sheet '{options.sheet}'")
+    return ", ".join(words)

@@ -36,7 +36,7 @@ from ..engine.histogram import bar_heights
 from ..engine.number_text import number_text
 from ..errors import Cancelled, ProjectError, ScalewrightError
 from ..io import ReadOptions, Table, read_table
-from ..io.detect import describe_delimiter
+from ..io.detect import describe_read_options
 from ..project import ALL_ROWS, UNSEEN_GROUPS, Project, locate_source, now_iso, options_text
 from . import svg
 from .formulas import reverse_formula
@@ -129,28 +129,6 @@ class Report:
 # =========================================================================== words
 
 
-_MARK_WORDS = {".": "point", ",": "comma", " ": "space", "'": "apostrophe"}
-
-
-def read_words(options: ReadOptions) -> str:
-    """The settings the data file was read with, in the words of the import settings."""
-    words = []
-    if options.encoding:
-        words.append(f"encoding {options.encoding.upper()}")
-    if options.delimiter:
-        words.append(f"columns separated by {describe_delimiter(options.delimiter)}")
-    if options.decimal:
-        words.append(f"decimal {_MARK_WORDS.get(options.decimal, repr(options.decimal))}")
-    if options.thousands:
-        mark = _MARK_WORDS.get(options.thousands, repr(options.thousands))
-        words.append(f"thousands separated by {mark}")
-    if options.header_row is not None:
-        words.append(f"column names on row {options.header_row + 1}")
-    if options.sheet:
-        words.append(f"sheet '{options.sheet}'")
-    return ", ".join(words)
-
-
 def shown_value(value: Any) -> str:
     """A value rounded for reading (the engine's number format, at 6 digits)."""
     if isinstance(value, str):
@@ -219,7 +197,7 @@ def _facts(project: Project, project_path: Path | None, source_state: str, made:
     if project.source_sha256 is not None:
         facts.append(("Data file SHA-256", f"{project.source_sha256} (as fitted)"))
     facts.append(("Data file now", source_state))
-    facts.append(("Read with", read_words(project.read_options) or "detected settings"))
+    facts.append(("Read with", describe_read_options(project.read_options) or "detected settings"))
     facts.append(("Fitted on", _rows_words(project)))
     if plan.settings.group_by is not None:
         facts.append(
