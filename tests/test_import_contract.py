@@ -125,8 +125,10 @@ def test_qt_free_parts_do_not_import_the_window(package):
     # the window sits on top of these: none of them may reach back up into gui
     for path in _sources(package):
         for name in imported_names(path):
-            assert not name.startswith("scalewright.gui"), f"{path.name} imports {name}"
+            assert name.split(".")[:2] != ["scalewright", "gui"], f"{path.name} imports {name}"
         tree = ast.parse(path.read_text(encoding="utf-8"))
         for node in ast.walk(tree):
             if isinstance(node, ast.ImportFrom) and node.level >= 1 and node.module:
-                assert not node.module.startswith("gui"), f"{path.name} imports .{node.module}"
+                # "gui" or "gui.x", not "guide" (the method guide is below the window)
+                first = node.module.split(".")[0]
+                assert first != "gui", f"{path.name} imports .{node.module}"

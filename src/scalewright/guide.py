@@ -104,6 +104,17 @@ def _capitalized(text: str) -> str:
     return text[:1].upper() + text[1:]
 
 
+def shape_caution() -> str:
+    """Which methods change the shape and which only move and stretch it, from the methods'
+    own ``changes_shape`` and ``linear`` (the guide's third caution, and the report's)."""
+    shaped = [m.name for m in METHODS.values() if m.changes_shape]
+    straight = [m.name for m in METHODS.values() if m.linear and m.param_specs]
+    return (
+        f"{_capitalized(_and_list(shaped))} change the shape of the distribution on purpose; "
+        f"the straight-line methods ({', '.join(straight)}) only move and stretch it."
+    )
+
+
 def methods_table() -> str:
     """One row a method: its name, its command-line id, what it does and what the project
     keeps, as a Markdown table (the guide's overview)."""
@@ -122,8 +133,6 @@ def methods_table() -> str:
 def guide_markdown(level: int = 3) -> str:
     """The whole method guide: the cautions, then every method in the registry's order.
     ``level`` is the heading level of each method (3 under the README's ``##``)."""
-    shaped = [m.name for m in METHODS.values() if m.changes_shape]
-    straight = [m.name for m in METHODS.values() if m.linear and m.param_specs]
     parts = [
         "Every method is fitted on some rows of a column (its parameters are learned from "
         "them), kept in the project file, and used unchanged on every row and on every "
@@ -132,8 +141,7 @@ def guide_markdown(level: int = 3) -> str:
         "",
         f"1. {CAUTION_FIT_ON_TRAINING}",
         f"2. {CAUTION_CLIPPING}",
-        f"3. {_capitalized(_and_list(shaped))} change the shape of the distribution on purpose; the "
-        f"straight-line methods ({', '.join(straight)}) only move and stretch it.",
+        f"3. {shape_caution()}",
         f"4. {CAUTION_KEEP_PROJECT}",
         "",
         "Missing values are left out of the fit and stay missing.",

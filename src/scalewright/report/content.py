@@ -22,7 +22,6 @@ import numpy as np
 
 from .. import __version__
 from ..engine import (
-    METHODS,
     FittedColumn,
     Method,
     ParamSet,
@@ -35,6 +34,7 @@ from ..engine import (
 from ..engine.histogram import bar_heights
 from ..engine.number_text import number_text
 from ..errors import Cancelled, ProjectError, ScalewrightError
+from ..guide import shape_caution
 from ..io import ReadOptions, Table, read_table
 from ..io.detect import describe_read_options
 from ..project import ALL_ROWS, UNSEEN_GROUPS, Project, locate_source, now_iso, options_text
@@ -53,23 +53,13 @@ ROUNDING_NOTE = (
 )
 
 
-def _shape_caution() -> str:
-    """The general caution on shape, naming the methods that are not straight lines."""
-    names = [m.name for m in METHODS.values() if not m.linear]
-    listed = ", ".join(names[:-1]) + " and " + names[-1] if len(names) > 1 else names[0]
-    return (
-        f"{listed[:1].upper()}{listed[1:]} change the shape of the distribution on purpose; "
-        "the other methods only shift and stretch it."
-    )
-
-
 GENERAL_CAUTIONS = (
     "The parameters were fitted on the rows stated in this report. To scale new data, "
     "re-apply these same parameters (Apply in the window, or scalewright apply); never fit "
     "them again on the new data, or the model would receive values on another scale.",
     "Values clipped into the fitted range when the parameters were applied cannot be "
     "restored exactly: restoring gives the end of the range, not the value that was there.",
-    _shape_caution(),
+    shape_caution(),
     "Scaled results feed decisions: keep the project file with the model it served, so that "
     "its inputs can be made again and its answers turned back into original units.",
 )
