@@ -75,13 +75,18 @@ def test_the_window_figures_use_the_ascii_minus_and_no_negative_zero():
 
 
 def test_no_method_word_uses_another_minus_sign():
-    """Every label, summary and guide text of every method uses the ASCII minus, as the
-    numbers do (issue 8, item 8); the robust spread's label had the Unicode one."""
+    """Every label, choice, fitted line and guide text of every method uses the ASCII minus,
+    as the numbers do (issue 8, item 8: "divides by n-1"); the robust spread's label and
+    the sample sd's words had the Unicode one."""
     from scalewright import guide
     from scalewright.engine import METHODS
 
     words = [guide.guide_markdown()]
+    x = np.array([-3.5, -1.0, 0.0, 2.5, 4.0, 9.0])  # values of both signs (invented)
     for method in METHODS.values():
         words += [spec.label for spec in method.param_specs]
         words += [spec.shown_label for spec in method.option_specs]
+        words += [spec.choice_words(c) for spec in method.option_specs for c in spec.choices]
+        data = x - x.min() + 1.0 if method.id in ("boxcox", "log") else x
+        words.append(method.describe_params(method.fit(data, method.options())))
     assert not [w for w in words if "\u2212" in w]

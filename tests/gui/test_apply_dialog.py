@@ -446,7 +446,7 @@ def test_saved_parameters_are_shown_in_plain_words(harvest_table):
     fc = fit_column(x, ColumnChoice("zscore").normalized(), column="yield_kg")
     z = saved_parameters(fc)
     assert f"mean {fc.pooled.params['mean']:.10g}" in z
-    assert "sample sd (divides by n − 1)" in z
+    assert "sample sd (divides by n-1)" in z
     assert "ddof" not in z and "=" not in z
     choice = ColumnChoice("boxcox", {"standardize": True}).normalized()
     b = saved_parameters(fit_column(x, choice, column="yield_kg"))

@@ -30,7 +30,7 @@ from .number_text import number_text
 
 
 def _sd_words(ddof: Any) -> str:
-    return "sample sd (divides by n \u2212 1)" if ddof == 1 else "population sd (divides by n)"
+    return "sample sd (divides by n-1)" if ddof == 1 else "population sd (divides by n)"
 
 
 def _standardized(params) -> bool:
@@ -177,7 +177,7 @@ class ZScore(LinearMethod):
             choices=("sample", "population"),
             label="Standard deviation",
             choice_labels={
-                "sample": "sample (n \u2212 1)",
+                "sample": "sample (n-1)",
                 "population": "population (n)",
             },
         ),

@@ -41,7 +41,7 @@ from .widgets import ERROR_STYLE, MUTED_STYLE, OK_STYLE, escape_html, message_la
 
 def saved_parameters(fc) -> str:
     """A fitted column's pooled parameters in one line of plain words, e.g. 'mean 75.5,
-    sd 36.7, sample sd (divides by n − 1)': the method's own description."""
+    sd 36.7, sample sd (divides by n-1)': the method's own description."""
     return engine.get_method(fc.method).describe_params(fc.pooled.params)
 
 
